@@ -1,0 +1,118 @@
+"""The austenitized state: how much austenite the part holds at the austenitizing
+temperature and how much carbon that austenite carries.
+
+Equal densities of the phases are assumed, so mass and volume fractions coincide.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..errors import InputError
+from .composition import Composition
+from .critical import (
+    CEMENTITE_C_WT,
+    EUTECTOID_C_WT,
+    FERRITE_C_WT,
+    acm_linear,
+    andrews_ae1,
+    andrews_ae3,
+    carbon_on_acm,
+)
+
+#: Highest austenitizing temperature accepted (C): well below the solidus of steels.
+MAX_AUSTENITIZE_C = 1250.0
+
+
+def a3_line_carbon(temperature_c, ae1_c, ae3_c, bulk_c):
+    """Carbon (wt%) of austenite in equilibrium with ferrite at a temperature between Ae1 and Ae3.
+
+    The A3 line of the steel is taken through (bulk C, Ae3) and (0.77 %C, Ae1) and linear in
+    sqrt(C), the shape of the Andrews (1965) Ae3 formula; so it honours both computed critical
+    temperatures of this steel.
+
+    >>> round(float(a3_line_carbon(770.0, 737.4, 799.9, 0.40)), 3)
+    0.562
+    """
+    s_bulk, s_eut = np.sqrt(bulk_c), np.sqrt(EUTECTOID_C_WT)
+    frac = np.clip((ae3_c - np.asarray(temperature_c, dtype=float)) / np.maximum(ae3_c - ae1_c, 1e-9), 0.0, 1.0)
+    return (s_bulk + frac * (s_eut - s_bulk)) ** 2
+
+
+def a3_line_temperature(carbon, ae1_c, ae3_c, bulk_c):
+    """Inverse of a3_line_carbon: the temperature (C) at which austenite of this carbon meets ferrite.
+
+    >>> round(float(a3_line_temperature(0.561, 737.4, 799.9, 0.40)), 0)
+    770.0
+    """
+    s_bulk, s_eut = np.sqrt(bulk_c), np.sqrt(EUTECTOID_C_WT)
+    span = s_eut - s_bulk
+    safe = np.where(np.abs(span) > 1e-12, span, 1.0)
+    frac = np.where(np.abs(span) > 1e-12, (np.sqrt(np.asarray(carbon, dtype=float)) - s_bulk) / safe, 1.0)
+    return ae3_c - frac * (ae3_c - ae1_c)
+
+
+@dataclass(frozen=True)
+class AusteniteState:
+    """What the part is at the austenitizing temperature.
+
+    austenite: volume fraction of austenite; ferrite / cementite: undissolved fractions;
+    carbon: wt% carbon in the austenite; ae1, ae3, acm: the steel's critical temperatures (C);
+    upper_critical: Ae3 (hypoeutectoid) or Acm (hypereutectoid) of the bulk steel.
+    """
+
+    composition: Composition
+    austenitize_c: float
+    austenite: float
+    ferrite: float
+    cementite: float
+    carbon: float
+    ae1: float
+    ae3: float
+    acm: float
+    hypereutectoid: bool
+
+    @property
+    def upper_critical(self) -> float:
+        return self.acm if self.hypereutectoid else self.ae3
+
+    @property
+    def austenite_composition(self) -> Composition:
+        """The chemistry that drives kinetics, Ms and martensite hardness."""
+        return self.composition.with_carbon(self.carbon)
+
+
+def austenitize(composition: Composition, austenitize_c: float) -> AusteniteState:
+    """Equilibrium state at the austenitizing temperature (lever rule on the steel's A3 or Acm line).
+
+    Hypoeutectoid steels between Ae1 and Ae3 keep ferrite; hypereutectoid steels below Acm keep
+    cementite and their austenite carries the carbon on the Acm line.
+
+    >>> s = austenitize(Composition(c=1.13, mn=0.3, si=0.2), 800.0)
+    >>> round(s.carbon, 3), round(s.cementite, 3)
+    (1.002, 0.023)
+    """
+    c = composition
+    ae1 = float(andrews_ae1(mn=c.mn, ni=c.ni, si=c.si, cr=c.cr, w=c.w))
+    ae3 = float(andrews_ae3(min(c.c, EUTECTOID_C_WT), ni=c.ni, si=c.si, v=c.v, mo=c.mo, w=c.w))
+    ae3 = max(ae3, ae1)
+    acm = float(acm_linear(max(c.c, EUTECTOID_C_WT)))
+    hyper = c.c > EUTECTOID_C_WT
+    t = float(austenitize_c)
+    if not np.isfinite(t) or t > MAX_AUSTENITIZE_C or t <= ae1:
+        raise InputError(
+            "steel.austenitize_c", austenitize_c,
+            f"a temperature above Ae1 ({ae1:.0f} C) of this steel and at most {MAX_AUSTENITIZE_C:.0f} C",
+        )
+    ferrite = cementite = 0.0
+    carbon = c.c
+    if hyper and t < acm:
+        carbon = float(np.clip(carbon_on_acm(t), EUTECTOID_C_WT, c.c))
+        cementite = (c.c - carbon) / (CEMENTITE_C_WT - carbon)
+    elif not hyper and t < ae3:
+        carbon = float(a3_line_carbon(t, ae1, ae3, c.c))
+        ferrite = float(np.clip((carbon - c.c) / (carbon - FERRITE_C_WT), 0.0, 1.0))
+    austenite = 1.0 - ferrite - cementite
+    return AusteniteState(c, t, austenite, ferrite, cementite, carbon, ae1, ae3, acm, hyper)

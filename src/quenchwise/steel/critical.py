@@ -1,0 +1,125 @@
+"""Critical temperatures from chemistry: one published correlation per function.
+
+All take element contents in wt% (floats or numpy arrays) and return degrees C.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+#: Fe-C eutectoid and the end of the Acm solvus at the eutectic temperature (memory).
+EUTECTOID_C_WT = 0.77
+EUTECTOID_T_C = 727.0
+ACM_END_C_WT = 2.11
+ACM_END_T_C = 1148.0
+#: Carbon in ferrite and in cementite (wt%), for lever-rule balances.
+FERRITE_C_WT = 0.02
+CEMENTITE_C_WT = 6.67
+
+
+def andrews_ae1(mn=0.0, ni=0.0, si=0.0, cr=0.0, w=0.0, as_=0.0):
+    """Lower critical temperature (Andrews 1965 Ac1, used as Ae1).
+
+    Ae1 = 723 - 10.7Mn - 16.9Ni + 29.1Si + 16.9Cr + 290As + 6.38W   [C, wt%]
+
+    Valid for low-alloy steels below about 0.6 %C (Andrews' data set).
+    Reference: Andrews, K.W. (1965), J. Iron Steel Inst. 203, 721 (memory).
+
+    >>> round(float(andrews_ae1(mn=0.85, si=0.25, cr=0.95)), 1)
+    737.2
+    """
+    return 723.0 - 10.7 * mn - 16.9 * ni + 29.1 * si + 16.9 * cr + 290.0 * as_ + 6.38 * w
+
+
+def andrews_ae3(c, ni=0.0, si=0.0, v=0.0, mo=0.0, w=0.0):
+    """Upper critical temperature (Andrews 1965 Ac3, used as Ae3).
+
+    Ae3 = 910 - 203 sqrt(C) - 15.2Ni + 44.7Si + 104V + 31.5Mo + 13.1W   [C, wt%]
+
+    Valid for hypoeutectoid low-alloy steels (C below about 0.6 %).
+    Reference: Andrews, K.W. (1965), J. Iron Steel Inst. 203, 721 (memory).
+
+    >>> round(float(andrews_ae3(0.40, si=0.25, mo=0.20)), 1)
+    799.1
+    """
+    return 910.0 - 203.0 * np.sqrt(c) - 15.2 * ni + 44.7 * si + 104.0 * v + 31.5 * mo + 13.1 * w
+
+
+def andrews_ms(c, mn=0.0, ni=0.0, cr=0.0, mo=0.0):
+    """Martensite start temperature, Andrews' linear formula.
+
+    Ms = 539 - 423C - 30.4Mn - 17.7Ni - 12.1Cr - 7.5Mo   [C, wt%]
+
+    Valid for C 0.11-0.6 %, low-alloy steels; used beyond that with care.
+    Reference: Andrews, K.W. (1965), J. Iron Steel Inst. 203, 721 (memory).
+
+    >>> round(float(andrews_ms(0.40, mn=0.85, cr=0.95, mo=0.20)), 1)
+    331.0
+    """
+    return 539.0 - 423.0 * c - 30.4 * mn - 17.7 * ni - 12.1 * cr - 7.5 * mo
+
+
+def steven_haynes_bs(c, mn=0.0, ni=0.0, cr=0.0, mo=0.0):
+    """Bainite start temperature, Steven & Haynes.
+
+    Bs = 830 - 270C - 90Mn - 37Ni - 70Cr - 83Mo   [C, wt%]
+
+    Reference: Steven, W. & Haynes, A.G. (1956), J. Iron Steel Inst. 183, 349 (memory).
+
+    >>> round(float(steven_haynes_bs(0.40, mn=0.85, cr=0.95, mo=0.20)), 1)
+    562.4
+    """
+    return 830.0 - 270.0 * c - 90.0 * mn - 37.0 * ni - 70.0 * cr - 83.0 * mo
+
+
+def li_bs(c, mn=0.0, ni=0.0, cr=0.0, mo=0.0):
+    """Bainite start temperature used with the Li et al. kinetics.
+
+    Bs = 637 - 58C - 35Mn - 15Ni - 34Cr - 41Mo   [C, wt%]
+
+    Reference: Li, M.V., Niebuhr, D.V., Meekisho, L.L., Atteridge, D.G. (1998),
+    Metall. Mater. Trans. B 29B, 661 (memory).
+
+    >>> round(float(li_bs(0.40, mn=0.85, cr=0.95, mo=0.20)), 1)
+    543.5
+    """
+    return 637.0 - 58.0 * c - 35.0 * mn - 15.0 * ni - 34.0 * cr - 41.0 * mo
+
+
+def kirkaldy_venugopalan_bs(c, mn=0.0, si=0.0, ni=0.0, cr=0.0, mo=0.0):
+    """Bainite start temperature, Kirkaldy & Venugopalan.
+
+    Bs = 656 - 58C - 35Mn - 75Si - 15Ni - 34Cr - 41Mo   [C, wt%]
+
+    Reference: Kirkaldy, J.S. & Venugopalan, D. (1983), in Phase Transformations in
+    Ferrous Alloys, TMS-AIME, 125 (memory).
+
+    >>> round(float(kirkaldy_venugopalan_bs(0.40, mn=0.85, si=0.25, cr=0.95, mo=0.20)), 1)
+    543.8
+    """
+    return 656.0 - 58.0 * c - 35.0 * mn - 75.0 * si - 15.0 * ni - 34.0 * cr - 41.0 * mo
+
+
+def acm_linear(c):
+    """Acm (cementite solvus) of plain Fe-C as a straight line.
+
+    Acm = 727 + (1148 - 727) (C - 0.77) / (2.11 - 0.77)   [C, wt%], for 0.77 <= C <= 2.11.
+    A fair first approximation of the curved solvus; no alloy correction (none cited).
+    Reference: Fe-C phase diagram, eutectoid (0.77 %C, 727 C) and eutectic end of the
+    solvus (2.11 %C, 1148 C) (memory).
+
+    >>> round(float(acm_linear(1.13)), 1)
+    840.1
+    """
+    slope = (ACM_END_T_C - EUTECTOID_T_C) / (ACM_END_C_WT - EUTECTOID_C_WT)
+    return EUTECTOID_T_C + slope * (np.asarray(c, dtype=float) - EUTECTOID_C_WT)
+
+
+def carbon_on_acm(temperature_c):
+    """Carbon (wt%) of austenite in equilibrium with cementite: the inverse of acm_linear.
+
+    >>> round(float(carbon_on_acm(840.1)), 3)
+    1.13
+    """
+    slope = (ACM_END_T_C - EUTECTOID_T_C) / (ACM_END_C_WT - EUTECTOID_C_WT)
+    return EUTECTOID_C_WT + (np.asarray(temperature_c, dtype=float) - EUTECTOID_T_C) / slope

@@ -1,0 +1,88 @@
+"""Simulate cases: austenitize, conduct heat with FiPy while the phases transform, then hardness.
+
+Cases are solved together as batches (one FiPy system per group of cases that share numerics and
+model), so a list of cases costs little more than one.
+"""
+
+from __future__ import annotations
+
+from typing import Callable
+
+import numpy as np
+
+from ..case import Case
+from ..hardness import hardness_hv, hrc_from_hv
+from ..kinetics import MODELS, PhaseStepper, SteelNodes
+from ..results import Result
+from ..steel import austenitize
+from ..thermal.solver import BatchSolver, ThermalCase
+
+
+def _thermal_case(i: int, case: Case) -> ThermalCase:
+    return ThermalCase(
+        name=case.title or f"case {i}", section=case.section, outer=case.outer, inner=case.inner,
+        initial_c=case.austenitize_c, end_c=case.end_c, conductivity_w_mk=case.conductivity_w_mk,
+        density_kg_m3=case.density_kg_m3, specific_heat_j_kgk=case.specific_heat_j_kgk,
+    )
+
+
+def simulate(cases: list[Case], progress: Callable[[float], None] | None = None) -> list[Result]:
+    """Results for every case, in order; cases with the same numerics and model share one solve."""
+    states = [austenitize(c.composition, c.austenitize_c) for c in cases]
+    groups: dict[tuple, list[int]] = {}
+    for i, c in enumerate(cases):
+        groups.setdefault((c.settings, c.model, c.martensite), []).append(i)
+    results: list[Result | None] = [None] * len(cases)
+    done_weight = 0.0
+    for (settings, model, martensite), members in groups.items():
+        solver = BatchSolver([_thermal_case(i, cases[i]) for i in members], settings)
+        stepper = None
+        if model != "none":
+            nodes = SteelNodes.from_states([states[i] for i in members], [cases[i].grain_size for i in members],
+                                           list(solver.counts), martensite_law=martensite)
+            stepper = PhaseStepper(nodes, MODELS[model](), solver.initial)
+        share = len(members) / len(cases)
+        report = None
+        if progress is not None:
+            base = done_weight
+            report = lambda f, base=base, share=share: progress(base + share * f)  # noqa: E731
+        histories = solver.run(stepper, progress=report)
+        done_weight += share
+        for j, (i, history) in enumerate(zip(members, histories)):
+            a, n = solver.starts[j], solver.counts[j]
+            sl = slice(a, a + n)
+            case, state = cases[i], states[i]
+            if stepper is None:
+                fractions = {"ferrite": np.full(n, state.ferrite), "pearlite": np.zeros(n), "bainite": np.zeros(n),
+                             "martensite": np.zeros(n), "austenite": np.full(n, state.austenite),
+                             "cementite": np.full(n, state.cementite)}
+                hv = np.full(n, np.nan)
+                rate = _rate_700(history)
+                ms = np.full(n, np.nan)
+            else:
+                fractions = {k: v[sl].copy() for k, v in stepper.fractions().items()}
+                rate = stepper.cooling_rate_700()[sl].copy()
+                chem = state.austenite_composition.as_dict()
+                hv = hardness_hv(fractions, rate, chem, undissolved_cementite=state.cementite)
+                ms = stepper.ms_at_start[sl].copy()
+            results[i] = Result(case=case, state=state, history=history, fractions=fractions, hv=hv,
+                                hrc=hrc_from_hv(hv), cooling_rate_700_c_s=rate, ms_c=float(ms[0]) if n else np.nan)
+    return results  # type: ignore[return-value]
+
+
+def simulate_case(case: Case, progress: Callable[[float], None] | None = None) -> Result:
+    """One case: a batch of one."""
+    return simulate([case], progress)[0]
+
+
+def _rate_700(history) -> np.ndarray:
+    """Cooling rate at 700 C of each node from the stored history (pure conduction runs)."""
+    t, temp = history.time_s, history.temperature_c
+    out = np.full(temp.shape[1], np.nan)
+    for j in range(temp.shape[1]):
+        col = temp[:, j]
+        k = np.flatnonzero((col[:-1] > 700.0) & (col[1:] <= 700.0))
+        if k.size:
+            i = k[0]
+            out[j] = (col[i] - col[i + 1]) / (t[i + 1] - t[i])
+    return out
