@@ -14,6 +14,7 @@ from pathlib import Path
 
 from .errors import InputError
 from .steel.composition import ELEMENTS, Composition
+from .steel.austenite import austenitize
 from .steel.grades import find_grade
 from .thermal.geometry import Section
 from .thermal.quenchants import Quenchant, htc_from_grossmann, load_quenchant
@@ -188,6 +189,7 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
     composition = Composition(**chemistry)
     grain = _number(s, "steel", "grain_size", 1.0, 14.0, default=grain)
     aust = _number(s, "steel", "austenitize_c", 600.0, 1250.0, required=aust is None, default=aust)
+    austenitize(composition, aust)  # rejects a temperature at or below Ae1 here, before any work
 
     section, dims = _section(data["part"])
     q = data["quench"]

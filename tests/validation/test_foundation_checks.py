@@ -1,0 +1,90 @@
+"""Outside checks of the whole chain, each with its source beside it."""
+
+import numpy as np
+import pytest
+
+from quenchwise.case import load_case
+from quenchwise.kinetics import koistinen_marburger
+from quenchwise.steel import andrews_ms
+from quenchwise.workflows import simulate
+
+from analytic_conduction import temperature as series_temperature
+
+
+def test_koistinen_marburger_at_ms_minus_100():
+    # Koistinen & Marburger (1959), Acta Metall. 7, 59: 1 - exp(-0.011 x 100) = 0.667 (memory).
+    assert float(koistinen_marburger(300.0, 200.0)) == pytest.approx(0.667, abs=0.001)
+
+
+def test_andrews_ms_of_a_cr_mo_steel():
+    # Ms of 0.40C-0.85Mn-0.95Cr-0.20Mo about 330-340 C: isothermal transformation atlases
+    # (memory, +/-30 C).
+    ms = float(andrews_ms(0.40, mn=0.85, cr=0.95, mo=0.20))
+    assert 300.0 <= ms <= 370.0
+
+
+def _case(tmp_path, text, name="c.toml"):
+    p = tmp_path / name
+    p.write_text(text)
+    return load_case(p)
+
+
+CONDUCTION = """
+title = "conduction only"
+[steel]
+c = 0.4
+austenitize_c = 850
+[part]
+shape = "bar"
+diameter_mm = 40
+[quench]
+htc_w_m2k = 1500
+bath_c = 20
+end_c = 100
+[transform]
+model = "none"
+[thermal]
+conductivity_w_mk = 30
+density_kg_m3 = 7800
+specific_heat_j_kgk = 600
+"""
+
+
+def test_conduction_only_run_matches_carslaw_jaeger_cylinder(tmp_path):
+    # Carslaw & Jaeger (1959), Conduction of Heat in Solids, 2nd ed.: infinite cylinder with
+    # constant h, series in J0 with roots of z J1(z) = Bi J0(z) (scipy.special). Bi = 1.
+    result = simulate([_case(tmp_path, CONDUCTION)])[0]
+    h = result.history
+    exact = series_temperature("bar", 0.02, 30.0, 7800.0, 600.0, 1500.0, 850.0, 20.0, h.time_s[1:], np.array([0.0]))
+    error = np.max(np.abs(h.temperature_c[1:, 0] - exact[:, 0])) / (850.0 - 20.0)
+    assert error < 0.005
+
+
+SHAFT = """
+title = "{title}"
+[steel]
+c = 0.40
+mn = 0.85
+si = 0.25
+cr = 0.95
+mo = 0.20
+austenitize_c = 850
+[part]
+shape = "bar"
+diameter_mm = {d}
+[quench]
+medium = "{medium}"
+end_c = 100
+"""
+
+
+def test_small_bar_in_water_hardens_and_large_bar_in_oil_is_softer_inside(tmp_path):
+    # Common practice, no source: a 25 mm bar of a 0.40C-0.9Cr-0.2Mo steel in water is martensitic
+    # at the surface (at least 50 HRC); a 100 mm bar of it in oil is clearly softer at the centre.
+    water = _case(tmp_path, SHAFT.format(title="w", d=25, medium="water_20c_still"), "w.toml")
+    oil = _case(tmp_path, SHAFT.format(title="o", d=100, medium="oil_conventional_60c_still"), "o.toml")
+    small, large = simulate([water, oil])
+    surface_small = small.summary()["points"][0]
+    assert surface_small["hrc"] >= 50.0 and surface_small["martensite_pct"] >= 80.0
+    points = large.summary()["points"]
+    assert points[0]["hv"] - points[2]["hv"] >= 40.0
