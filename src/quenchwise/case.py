@@ -196,8 +196,10 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
     outer = _quenchant(q, "", base_dir, None)
     inner = None
     if section.shape == "tube":
-        inner = _quenchant(q, "inner_", base_dir, outer.bath_c)
-        if inner is None:  # insulated bore
+        # An immersed tube is quenched in its bore too: same medium unless inner_* keys say otherwise.
+        has_inner = any(k.startswith("inner_") for k in q)
+        inner = _quenchant(q, "inner_", base_dir, outer.bath_c) if has_inner else outer
+        if inner is None:  # inner_medium = "insulated": closed bore
             section = Section("tube", section.inner_m, section.outer_m, inner_quenched=False)
     elif any(k.startswith("inner_") for k in q):
         k = next(k for k in q if k.startswith("inner_"))
