@@ -30,6 +30,8 @@ SECTIONS = {
     "transform": {"model", "martensite"},
     "thermal": {"conductivity_w_mk", "density_kg_m3", "specific_heat_j_kgk"},
     "mesh": {"cells", "growth", "max_temperature_step_k", "max_fraction_step"},
+    "requirement": {"min_hrc", "min_martensite_pct", "depth_mm"},
+    "compare": {"media"},
 }
 MODELS = ("li1998", "none")
 MARTENSITE_LAWS = ("koistinen_marburger", "van_bohemen_sietsma")
@@ -42,6 +44,34 @@ DEFAULT_END_C = 60.0
 class Temper:
     temperature_c: float
     hours: float
+
+
+@dataclass(frozen=True)
+class Requirement:
+    """What the drawing asks: a minimum HRC or martensite percentage down to a depth below the
+    quenched surface (None: down to the centre / through the wall)."""
+
+    min_hrc: float | None = None
+    min_martensite_pct: float | None = None
+    depth_mm: float | None = None
+
+    def describe(self) -> str:
+        what = f"{self.min_hrc:g} HRC" if self.min_hrc is not None else f"{self.min_martensite_pct:g} % martensite"
+        where = "at the centre" if self.depth_mm is None else f"down to {self.depth_mm:g} mm depth"
+        return f"at least {what} {where}"
+
+
+def parse_requirement(table: dict, section: str = "requirement") -> Requirement:
+    """[requirement]: exactly one of min_hrc, min_martensite_pct; optional depth_mm."""
+    keys = [k for k in ("min_hrc", "min_martensite_pct") if k in table]
+    if len(keys) != 1:
+        raise InputError(f"{section}.min_hrc", ", ".join(keys) or "(missing)",
+                         "exactly one of min_hrc, min_martensite_pct")
+    return Requirement(
+        min_hrc=_number(table, section, "min_hrc", 20.0, 68.0),
+        min_martensite_pct=_number(table, section, "min_martensite_pct", 0.0, 100.0, lo_open=True),
+        depth_mm=_number(table, section, "depth_mm", 0.0, 1000.0),
+    )
 
 
 @dataclass(frozen=True)
@@ -64,6 +94,8 @@ class Case:
     density_kg_m3: float | None = None
     specific_heat_j_kgk: float | None = None
     settings: SolverSettings = SolverSettings()
+    requirement: Requirement | None = None
+    compare_media: tuple = ()
     dimensions_mm: dict = field(default_factory=dict)
     source_text: str = ""
     source_name: str = ""
@@ -221,6 +253,15 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         temper = Temper(_number(tp, "temper", "temperature_c", 100.0, 720.0, required=True),
                         _number(tp, "temper", "hours", 0.0, 1000.0, required=True, lo_open=True))
 
+    requirement = parse_requirement(data["requirement"]) if "requirement" in data else None
+    if requirement is not None and requirement.depth_mm is not None and requirement.depth_mm > section.thickness_m * 1000.0:
+        raise InputError("requirement.depth_mm", requirement.depth_mm,
+                         f"a depth from 0 to {section.thickness_m * 1000.0:g} mm (surface to centre / through the wall)")
+    media = data.get("compare", {}).get("media", [])
+    if not isinstance(media, list) or not all(isinstance(m, str) and m for m in media):
+        raise InputError("compare.media", media, "a list of quenchant names or CSV paths")
+    compare_media = tuple(load_quenchant(m, base_dir, key="compare.media") for m in media)
+
     th = data.get("thermal", {})
     k = _number(th, "thermal", "conductivity_w_mk", 0.0, 500.0, lo_open=True)
     rho = _number(th, "thermal", "density_kg_m3", 0.0, 30000.0, lo_open=True)
@@ -237,7 +278,8 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
     return Case(
         title=title, composition=composition, grade=grade, grain_size=grain, austenitize_c=aust, section=section,
         outer=outer, inner=inner, end_c=end_c, model=model, martensite=martensite, temper=temper,
-        conductivity_w_mk=k, density_kg_m3=rho, specific_heat_j_kgk=cp, settings=settings, dimensions_mm=dims,
+        conductivity_w_mk=k, density_kg_m3=rho, specific_heat_j_kgk=cp, settings=settings,
+        requirement=requirement, compare_media=compare_media, dimensions_mm=dims,
         source_text=source_text, source_name=source_name,
     )
 

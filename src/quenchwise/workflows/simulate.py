@@ -17,6 +17,9 @@ from ..results import Result
 from ..steel import austenitize
 from ..thermal.solver import BatchSolver, ThermalCase
 
+#: Temperature the part reaches after the quench, when martensite formation ends [C].
+ROOM_C = 20.0
+
 
 def _thermal_case(i: int, case: Case) -> ThermalCase:
     return ThermalCase(
@@ -47,6 +50,12 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
             base = done_weight
             report = lambda f, base=base, share=share: progress(base + share * f)  # noqa: E731
         histories = solver.run(stepper, progress=report)
+        if stepper is not None:
+            # After the quench the part is left to cool to room temperature (common practice): the
+            # austenite still above it can only turn to martensite there (dt = 0: no diffusion).
+            last = np.concatenate([h.temperature_c[-1] for h in histories])
+            room = np.minimum(ROOM_C, last)
+            stepper.advance(last, room, np.zeros_like(last))
         done_weight += share
         for j, (i, history) in enumerate(zip(members, histories)):
             a, n = solver.starts[j], solver.counts[j]

@@ -1,0 +1,48 @@
+"""Variations of a case for the batched questions: another quenchant, size or chemistry."""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+from ..case import Case
+from ..thermal.geometry import Section
+from ..thermal.quenchants import Quenchant
+
+
+def with_quenchant(case: Case, quenchant: Quenchant) -> Case:
+    """The same part in another quenchant; a tube bore that shared the outer medium follows it."""
+    inner = case.inner
+    if inner is not None and inner is case.outer:
+        inner = quenchant
+    return replace(case, outer=quenchant, inner=inner)
+
+
+def size_label(case: Case) -> str:
+    """What 'size' means for this shape: the dimension a sizing search varies."""
+    return {"plate": "thickness_mm", "bar": "diameter_mm", "sphere": "diameter_mm", "tube": "wall_mm"}[case.section.shape]
+
+
+def case_size_mm(case: Case) -> float:
+    s = case.section
+    if s.shape == "tube":
+        return (s.outer_m - s.inner_m) * 1000.0
+    if s.shape == "plate":
+        return case.dimensions_mm["thickness_mm"]
+    return 2.0 * s.outer_m * 1000.0
+
+
+def with_size(case: Case, size_mm: float) -> Case:
+    """The same case at another size: plate thickness, bar or sphere diameter, or tube wall
+    (bore kept, outer diameter grows)."""
+    s, dims = case.section, dict(case.dimensions_mm)
+    size_m = size_mm / 1000.0
+    if s.shape == "plate":
+        section = Section.plate(size_m, dims.get("faces", "both"))
+        dims["thickness_mm"] = size_mm
+    elif s.shape in ("bar", "sphere"):
+        section = (Section.bar if s.shape == "bar" else Section.sphere)(size_m)
+        dims["diameter_mm"] = size_mm
+    else:
+        section = Section("tube", s.inner_m, s.inner_m + size_m, inner_quenched=s.inner_quenched)
+        dims["outer_diameter_mm"] = round(2000.0 * (s.inner_m + size_m), 6)
+    return replace(case, section=section, dimensions_mm=dims)
