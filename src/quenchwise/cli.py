@@ -50,6 +50,24 @@ def _check_out_dir(out: Path, overwrite: bool) -> None:
         raise InputError("--out", str(out), "a new or empty folder; add --overwrite to replace the results in it")
 
 
+@contextmanager
+def _staged(out: Path):
+    """A staging folder beside OUT; on success its files move into OUT one atomic rename each.
+
+    Usage: ``with _staged(out) as (staging, placed): write files into staging``; afterwards
+    ``placed`` lists the final paths. On any error the staging folder is removed and OUT is
+    untouched.
+    """
+    out.parent.mkdir(parents=True, exist_ok=True)
+    staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.", dir=out.parent))
+    placed: list[Path] = []
+    try:
+        yield staging, placed
+        placed.extend(_publish(staging, out))
+    finally:
+        shutil.rmtree(staging, ignore_errors=True)
+
+
 def _publish(staging: Path, out: Path) -> list[Path]:
     """Move finished files from the staging folder into out, each by an atomic rename."""
     out.mkdir(parents=True, exist_ok=True)
@@ -139,16 +157,11 @@ def run(
         case = load_case(case_file)
         with _Progress(not json_out, "quenching") as progress:
             result = simulate_case(case, progress)
-        out.parent.mkdir(parents=True, exist_ok=True)
-        staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.", dir=out.parent))
-        try:
+        with _staged(out) as (staging, files):
             write_result_h5(result, staging / "result.h5")
             write_profile_csv(result, staging / "profile.csv")
             hardness_figure(result, staging)
             cooling_figure(result, staging)
-            files = _publish(staging, out)
-        finally:
-            shutil.rmtree(staging, ignore_errors=True)
         summary = result.summary()
         if json_out:
             summary["files"] = [str(f) for f in files]
