@@ -43,10 +43,12 @@ def _guard():
         _fail("interrupted; no results were written", 130)
 
 
-def _check_out_dir(out: Path, overwrite: bool) -> None:
+def _check_out_dir(out: Path, overwrite: bool, markers: tuple = OUTPUT_MARKERS) -> None:
+    """Refuse a file as --out, and a folder that already holds this command's results (unless
+    --overwrite)."""
     if out.exists() and not out.is_dir():
         raise InputError("--out", str(out), "a folder path (this is a file)")
-    if out.is_dir() and not overwrite and any((out / m).exists() for m in OUTPUT_MARKERS):
+    if out.is_dir() and not overwrite and any((out / m).exists() for m in markers):
         raise InputError("--out", str(out), "a new or empty folder; add --overwrite to replace the results in it")
 
 
@@ -201,3 +203,196 @@ def main(version: Optional[bool] = typer.Option(None, "--version", help="Print t
 
 if __name__ == "__main__":  # pragma: no cover
     app()
+
+
+def _emit(json_out: bool, payload: dict, text: str) -> None:
+    """--json: the payload (with the caution) as one JSON object; else the text and the caution."""
+    if json_out:
+        typer.echo(json.dumps({**payload, "caution": CAUTION}))
+    else:
+        typer.echo(text + "\n\n" + CAUTION)
+
+
+def _fmt(v, pattern="{:.1f}") -> str:
+    return "-" if v is None else pattern.format(v)
+
+
+@app.command()
+def compare(
+    case_file: Path = typer.Argument(..., help="Case file (TOML)."),
+    medium: list[str] = typer.Option([], "--medium", "-m", help="Quenchant name or CSV path; repeat for each."),
+    out: Path = typer.Option(..., "--out", "-o", help="Folder for compare.csv and figures."),
+    json_out: bool = typer.Option(False, "--json", help="Print the table as one JSON object, nothing else."),
+    overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+) -> None:
+    """The same part in several quenchants, solved as one batch."""
+    with _guard():
+        from .case import load_case
+        from .plots import compare_figures
+        from .results import write_table_csv
+        from .thermal.quenchants import load_quenchant
+        from .workflows.compare import compare as compare_media
+
+        _check_out_dir(out, overwrite, markers=("compare.csv",))
+        case = load_case(case_file)
+        media = [load_quenchant(m, key="--medium") for m in medium] or list(case.compare_media)
+        if len(media) < 1:
+            raise InputError("--medium", "(none)", "one or more quenchants (--medium NAME, or [compare] media in the case)")
+        with _Progress(not json_out, "comparing") as progress:
+            result = compare_media(case, media, progress)
+        with _staged(out) as (staging, files):
+            write_table_csv(staging / "compare.csv", result.rows)
+            compare_figures(result, staging)
+        best = result.best()
+        lines = [f"{case.title or 'case'}: {len(media)} quenchants, one batch",
+                 f"{'medium':<30}{'H 1/in':>8}{'surf HRC':>10}{'half HRC':>10}{'ctr HRC':>9}{'ctr M %':>9}"
+                 f"{'eff. depth mm':>15}{'meets':>7}  crack risk"]
+        for r in result.rows:
+            lines.append(f"{r['medium']:<30}{_fmt(r['equivalent_h'], '{:.2f}'):>8}{_fmt(r['surface_hrc']):>10}"
+                         f"{_fmt(r['half_hrc']):>10}{_fmt(r['centre_hrc']):>9}{r['centre_martensite_pct']:>9.1f}"
+                         f"{r['effective_depth_mm']:>15.2f}{('yes' if r['meets_requirement'] else 'no'):>7}  {r['crack_risk']}")
+        lines.append(f"effective depth: to {result.rows[0]['limit_hrc']:g} HRC "
+                     + ("(the requirement)" if case.requirement and case.requirement.min_hrc else "(50 % martensite, Hodge & Orehoski)"))
+        if case.requirement is not None:
+            lines.append(f"requirement: {case.requirement.describe()}; mildest that meets it: "
+                         + (best["medium"] if best else "none of these"))
+        lines.append("crack risk: common-practice rule on austenite carbon and severity (see workflows/compare.py)")
+        lines.append("wrote   " + ", ".join(str(f) for f in files))
+        _emit(json_out, {"title": case.title, "rows": result.rows, "mildest_meeting": best["medium"] if best else None,
+                         "files": [str(f) for f in files]}, "\n".join(lines))
+
+
+def _requirement_from_options(case, min_hrc, min_martensite, depth_mm):
+    from .case import parse_requirement
+
+    if min_hrc is None and min_martensite is None:
+        if depth_mm is not None and case.requirement is not None:
+            from dataclasses import replace
+            return replace(case.requirement, depth_mm=depth_mm)
+        return case.requirement
+    table = {"depth_mm": depth_mm} if depth_mm is not None else {}
+    if min_hrc is not None:
+        table["min_hrc"] = min_hrc
+    if min_martensite is not None:
+        table["min_martensite_pct"] = min_martensite
+    return parse_requirement(table, section="option")
+
+
+@app.command()
+def size(
+    case_file: Path = typer.Argument(..., help="Case file (TOML) with a [requirement], or give one below."),
+    out: Path = typer.Option(..., "--out", "-o", help="Folder for sizing.json and figures."),
+    min_hrc: Optional[float] = typer.Option(None, "--min-hrc", help="Required hardness, HRC."),
+    min_martensite: Optional[float] = typer.Option(None, "--min-martensite", help="Required martensite, %."),
+    depth_mm: Optional[float] = typer.Option(None, "--depth-mm", help="Down to this depth (default: centre)."),
+    json_out: bool = typer.Option(False, "--json", help="Print the answers as one JSON object, nothing else."),
+    overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+) -> None:
+    """Mildest severity, the quenchants that do it, and the largest section that meets a requirement."""
+    with _guard():
+        from .case import load_case
+        from .plots import sizing_figure
+        from .workflows.size import size as size_answer
+
+        _check_out_dir(out, overwrite, markers=("sizing.json",))
+        case = load_case(case_file)
+        req = _requirement_from_options(case, min_hrc, min_martensite, depth_mm)
+        if req is not None and req.depth_mm is not None and req.depth_mm > case.section.thickness_m * 1000.0:
+            raise InputError("--depth-mm", req.depth_mm, f"a depth from 0 to {case.section.thickness_m * 1000.0:g} mm")
+        with _Progress(not json_out, "sizing") as progress:
+            answer = size_answer(case, req, progress=progress)
+        payload = {"title": case.title, **answer.as_dict()}
+        with _staged(out) as (staging, files):
+            (staging / "sizing.json").write_text(json.dumps(payload, indent=2), "utf-8")
+            sizing_figure(answer, staging)
+        d = payload
+        sev, big = d["mildest_severity"], d["largest_size"]
+        lines = [f"{case.title or 'case'}: {d['requirement']}",
+                 ("mildest constant severity: H = {:.3g} 1/in (h = {:.0f} W/m2K); H = {:.3g} does not meet it".format(
+                     sev["grossmann_h_per_inch"], sev["htc_w_m2k"], sev["next_milder_h_per_inch"])
+                  if sev["reachable"] and sev["next_milder_h_per_inch"] is not None else
+                  ("met even by the mildest severity tried" if sev["reachable"] else
+                   "not reachable by quench severity alone: choose a more hardenable steel or a smaller section")),
+                 "built-in quenchants that meet it, mildest first: " + (", ".join(d["quenchants_meeting"]) or "none"),
+                 (f"largest {big['dimension']} in {case.outer.name}: {big['largest_passing_mm']:g} mm "
+                  + (f"({big['next_larger_failing_mm']:g} mm does not meet it)" if big["next_larger_failing_mm"] else "(largest tried)")
+                  if big["largest_passing_mm"] is not None else f"no {big['dimension']} tried meets it in {case.outer.name}")
+                 + f"; this part: {big['case_size_mm']:g} mm",
+                 "wrote   " + ", ".join(str(f) for f in files)]
+        _emit(json_out, {**payload, "files": [str(f) for f in files]}, "\n".join(lines))
+
+
+@app.command()
+def band(
+    case_file: Path = typer.Argument(..., help="Case file (TOML) naming a built-in grade."),
+    out: Path = typer.Option(..., "--out", "-o", help="Folder for band.csv and band figure."),
+    samples: int = typer.Option(200, "--samples", min=2, max=5000, help="Number of sampled heats."),
+    seed: int = typer.Option(1, "--seed", help="Random seed (same seed, same answer)."),
+    json_out: bool = typer.Option(False, "--json", help="Print the band summary as one JSON object, nothing else."),
+    overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+) -> None:
+    """Hardness band over the grade's chemistry range (seeded Monte Carlo, one batch)."""
+    with _guard():
+        import numpy as np
+
+        from .case import load_case
+        from .plots import band_figure
+        from .results import write_table_csv
+        from .workflows.band import band as band_run
+
+        _check_out_dir(out, overwrite, markers=("band.csv",))
+        case = load_case(case_file)
+        with _Progress(not json_out, "sampling chemistry") as progress:
+            b = band_run(case, samples, seed, progress)
+        q_hv, q_hrc = b.quantiles(b.hv), b.quantiles(b.hrc)
+        rows = [{"depth_mm": float(d), "hv_min": float(q_hv["min"][i]), "hv_median": float(q_hv["median"][i]),
+                 "hv_max": float(q_hv["max"][i]), "hrc_min": float(q_hrc["min"][i]),
+                 "hrc_median": float(q_hrc["median"][i]), "hrc_max": float(q_hrc["max"][i])}
+                for i, d in enumerate(b.depth_mm)]
+        with _staged(out) as (staging, files):
+            write_table_csv(staging / "band.csv", rows)
+            band_figure(b, staging)
+        share = b.share_meeting()
+        surface, centre = rows[0], rows[-1]
+        lines = [f"{case.title or 'case'}: {case.grade} chemistry range, {samples} heats (seed {seed}), one batch",
+                 f"{'':<10}{'HRC min':>9}{'median':>9}{'max':>9}",
+                 f"{'surface':<10}{_fmt(surface['hrc_min']):>9}{_fmt(surface['hrc_median']):>9}{_fmt(surface['hrc_max']):>9}",
+                 f"{'centre':<10}{_fmt(centre['hrc_min']):>9}{_fmt(centre['hrc_median']):>9}{_fmt(centre['hrc_max']):>9}"]
+        if share is not None:
+            lines.append(f"share of heats meeting '{case.requirement.describe()}': {100 * share:.1f} %")
+        lines.append("wrote   " + ", ".join(str(f) for f in files))
+        clean = [{k: (None if isinstance(v, float) and not np.isfinite(v) else v) for k, v in r.items()} for r in rows]
+        _emit(json_out, {"title": case.title, "grade": case.grade, "samples": samples, "seed": seed,
+                         "share_meeting_requirement": share, "profile": clean, "files": [str(f) for f in files]},
+              "\n".join(lines))
+
+
+@app.command()
+def sheet(
+    case_file: Path = typer.Argument(..., help="Case file (TOML)."),
+    out: Path = typer.Option(..., "--out", "-o", help="Folder for sheet.pdf and sheet.png."),
+    json_out: bool = typer.Option(False, "--json", help="Print the sheet's numbers as one JSON object, nothing else."),
+    overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+) -> None:
+    """A one-page hardening sheet (PDF and PNG) for the drawing or the process record."""
+    with _guard():
+        from .case import load_case
+        from .report import key_numbers, sheet_rows, write_sheet
+        from .workflows import simulate_case
+
+        _check_out_dir(out, overwrite, markers=("sheet.pdf",))
+        case = load_case(case_file)
+        with _Progress(not json_out, "quenching") as progress:
+            result = simulate_case(case, progress)
+        with _staged(out) as (staging, files):
+            write_sheet(result, staging)
+        keys = key_numbers(result)
+        rows = sheet_rows(result)
+        lines = [f"{case.title or 'case'}: hardening sheet",
+                 f"effective depth {keys['effective_depth_mm']:g} mm to {keys['limit_hrc']:g} HRC; centre martensite "
+                 f"{keys['centre_martensite_pct']:g} %; retained austenite up to {keys['max_retained_austenite_pct']:g} %"]
+        if keys["requirement"]:
+            lines.append(("MET: " if keys["meets_requirement"] else "NOT MET: ") + keys["requirement"])
+        lines.append("wrote   " + ", ".join(str(f) for f in files))
+        _emit(json_out, {"title": case.title, "key_numbers": keys, "depths": rows, "case_sha256": case.source_sha256,
+                         "files": [str(f) for f in files]}, "\n".join(lines))

@@ -113,13 +113,8 @@ class Result:
 
     def warnings(self) -> list[str]:
         case = self.case
-        out = list(case.composition.range_warnings())
-        if self.state.ferrite > 1e-4:
-            out.append(f"austenitized below Ae3 ({self.state.ae3:.0f} C): {100 * self.state.ferrite:.1f} % ferrite "
-                       "stays untransformed (intercritical)")
-        if self.state.cementite > 1e-4:
-            out.append(f"austenitized below Acm ({self.state.acm:.0f} C): {100 * self.state.cementite:.1f} % carbide "
-                       f"stays undissolved; austenite carries {self.state.carbon:.2f} %C")
+        out = list(case.composition.range_warnings(case.model))
+        out.extend(self.state.warnings())
         for q in (case.outer, case.inner):
             if q is not None and q.flash_point_c is not None and q.bath_c > q.flash_point_c - FLASH_MARGIN_K:
                 out.append(f"{q.name}: bath at {q.bath_c:g} C is within {FLASH_MARGIN_K:g} K of the oil's flash "
@@ -211,3 +206,16 @@ def read_result_h5(path: Path) -> dict:
         data = {k: f[k][()] for k in f.keys()}
         data["attrs"] = {k: (v.decode() if isinstance(v, bytes) else v) for k, v in f.attrs.items()}
     return data
+
+
+def write_table_csv(path: Path, rows: list[dict], columns: list[str] | None = None) -> None:
+    """A list of flat dicts as CSV (None and NaN as empty fields), written atomically."""
+    columns = columns or list(rows[0].keys())
+    out = io.StringIO()
+    w = csv.writer(out, lineterminator="\n")
+    w.writerow(columns)
+    for r in rows:
+        w.writerow(["" if r.get(c) is None or (isinstance(r.get(c), float) and not np.isfinite(r[c]))
+                    else (f"{r[c]:.6g}" if isinstance(r[c], float) else r[c]) for c in columns])
+    text = out.getvalue()
+    _atomic_write(Path(path), lambda p: p.write_text(text, "utf-8"))
