@@ -8,7 +8,9 @@ atomic renames, so existing results are never lost or half-replaced.
 from __future__ import annotations
 
 import json
+import os
 import shutil
+import signal
 import sys
 import tempfile
 from contextlib import contextmanager
@@ -32,15 +34,56 @@ def _fail(message: str, code: int = 2) -> None:
     raise typer.Exit(code)
 
 
+class _Interrupted(KeyboardInterrupt):
+    """SIGINT or SIGTERM arrived; carries the exit status (128 + signal number)."""
+
+    def __init__(self, status: int):
+        super().__init__(status)
+        self.status = status
+
+
+#: What the command is doing now, for the message an interrupt prints.
+_doing = ["starting"]
+
+
+def _activity(text: str) -> None:
+    _doing[0] = text
+
+
+def _on_signal(signum, _frame):
+    raise _Interrupted(128 + signum)
+
+
 @contextmanager
 def _guard():
-    """Turn input errors into one line and exit 2; an interrupt into one line and exit 130."""
+    """One line and a clear status for everything that ends a command early:
+    bad input -> 2; solver failure -> 1; SIGINT -> 130, SIGTERM -> 143 (saying what was being done;
+    results are staged, so nothing is half-written and earlier results stay); anything unexpected
+    -> 1 with the exception named (QUENCHWISE_DEBUG=1 shows the traceback)."""
+    from .thermal.solver import SolverError
+
+    previous = {sig: signal.getsignal(sig) for sig in (signal.SIGINT, signal.SIGTERM)}
+    for sig in previous:
+        signal.signal(sig, _on_signal)
+    _activity("starting")
     try:
         yield
     except InputError as exc:
         _fail(str(exc))
-    except KeyboardInterrupt:
-        _fail("interrupted; no results were written", 130)
+    except SolverError as exc:
+        _fail(f"solver stopped: {exc}", 1)
+    except KeyboardInterrupt as exc:
+        status = exc.status if isinstance(exc, _Interrupted) else 130
+        _fail(f"interrupted while {_doing[0]}; no results were written and earlier results are untouched", status)
+    except (typer.Exit, typer.Abort):
+        raise
+    except Exception as exc:  # noqa: BLE001 - the user gets one line, not a traceback
+        if os.environ.get("QUENCHWISE_DEBUG"):
+            raise
+        _fail(f"internal error ({type(exc).__name__}: {exc}); please report it with the case file", 1)
+    finally:
+        for sig, handler in previous.items():
+            signal.signal(sig, handler)
 
 
 def _check_out_dir(out: Path, overwrite: bool, markers: tuple = OUTPUT_MARKERS) -> None:
@@ -64,8 +107,14 @@ def _staged(out: Path):
     staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.", dir=out.parent))
     placed: list[Path] = []
     try:
+        _activity(f"writing results (staged in {staging.name})")
         yield staging, placed
-        placed.extend(_publish(staging, out))
+        # No signal may split the move: block them until every file is in place.
+        signal.pthread_sigmask(signal.SIG_BLOCK, {signal.SIGINT, signal.SIGTERM})
+        try:
+            placed.extend(_publish(staging, out))
+        finally:
+            signal.pthread_sigmask(signal.SIG_UNBLOCK, {signal.SIGINT, signal.SIGTERM})
     finally:
         shutil.rmtree(staging, ignore_errors=True)
 
@@ -157,6 +206,7 @@ def run(
 
         _check_out_dir(out, overwrite)
         case = load_case(case_file)
+        _activity(f"solving the quench of {case_file}")
         with _Progress(not json_out, "quenching") as progress:
             result = simulate_case(case, progress)
         with _staged(out) as (staging, files):
@@ -238,6 +288,7 @@ def compare(
         media = [load_quenchant(m, key="--medium") for m in medium] or list(case.compare_media)
         if len(media) < 1:
             raise InputError("--medium", "(none)", "one or more quenchants (--medium NAME, or [compare] media in the case)")
+        _activity(f"solving {len(media)} quenches of {case_file}")
         with _Progress(not json_out, "comparing") as progress:
             result = compare_media(case, media, progress)
         with _staged(out) as (staging, files):
@@ -299,6 +350,7 @@ def size(
         req = _requirement_from_options(case, min_hrc, min_martensite, depth_mm)
         if req is not None and req.depth_mm is not None and req.depth_mm > case.section.thickness_m * 1000.0:
             raise InputError("--depth-mm", req.depth_mm, f"a depth from 0 to {case.section.thickness_m * 1000.0:g} mm")
+        _activity(f"running the sizing sweeps of {case_file}")
         with _Progress(not json_out, "sizing") as progress:
             answer = size_answer(case, req, progress=progress)
         payload = {"title": case.title, **answer.as_dict()}
@@ -342,6 +394,7 @@ def band(
 
         _check_out_dir(out, overwrite, markers=("band.csv",))
         case = load_case(case_file)
+        _activity(f"solving {samples} sampled heats of {case_file}")
         with _Progress(not json_out, "sampling chemistry") as progress:
             b = band_run(case, samples, seed, progress)
         q_hv, q_hrc = b.quantiles(b.hv), b.quantiles(b.hrc)
@@ -382,6 +435,7 @@ def sheet(
 
         _check_out_dir(out, overwrite, markers=("sheet.pdf",))
         case = load_case(case_file)
+        _activity(f"solving the quench of {case_file}")
         with _Progress(not json_out, "quenching") as progress:
             result = simulate_case(case, progress)
         with _staged(out) as (staging, files):
