@@ -18,6 +18,7 @@ import h5py
 import numpy as np
 
 from . import __version__
+from .kinetics import critical_temperature_note
 from .steel import AusteniteState
 from .thermal.solver import CaseHistory
 
@@ -99,7 +100,7 @@ class Result:
                       "ae1_c": round(self.state.ae1, 1), "ae3_c": round(self.state.ae3, 1),
                       "acm_c": round(self.state.acm, 1) if self.state.hypereutectoid else None,
                       "ms_c": _round(self.ms_c, 1),
-                      "critical_temperatures": "Andrews (1965) Ae1/Ae3/Ms; linear Fe-C Acm; Li et al. (1998) Bs"},
+                      "critical_temperatures": critical_temperature_note(case.model)},
             "part": {"shape": self.history.section.shape, **case.dimensions_mm},
             "quench": {"outer": case.outer.name, "bath_c": case.outer.bath_c,
                        "inner": case.inner.name if case.inner else None, "end_c": case.end_c},

@@ -6,7 +6,7 @@ G = ASTM grain size number, S(X) with exponent 0.4 (see sigmoid.py).
 Reference: Li, M.V., Niebuhr, D.V., Meekisho, L.L., Atteridge, D.G. (1998),
 "A computational model for the prediction of steel hardenability", Metall. Mater. Trans. B 29B,
 661-672 (coefficients: memory). Fitted on low-alloy steels of the isothermal transformation
-atlases; the composition range is steel.composition.MODEL_RANGE.
+atlases; the composition range is steel.composition.MODEL_RANGES["li1998"].
 
 Activation energy of ferrite: the paper is read two ways, Q = 27 500 or 23 500 cal/mol. With
 27 500 the ferrite start of a 0.40C-0.9Cr-0.2Mo steel at 650 C comes out near 70 s, an order of
@@ -20,6 +20,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+
+from ..steel.critical import li_bs
+from .sigmoid import fraction_from_progress
 
 GAS_CONSTANT_CAL_MOL_K = 1.987
 SIGMOID_EXPONENT = 0.4
@@ -77,12 +80,21 @@ def kirkaldy_time_constant(factor, grain_exponent, grain_size, undercooling_k, u
 
 @dataclass(frozen=True)
 class Li1998:
-    """Li et al. (1998) laws for ferrite, pearlite and bainite (cementite: see time_constants)."""
+    """Li et al. (1998) laws for ferrite, pearlite and bainite (cementite: see time_constants).
+
+    The interface every kinetics model offers (see kinetics/__init__.py): name, sigmoid_exponent,
+    bs_reference, bainite_start(chem), factors(chem), time_constants(...), fraction(...).
+    """
 
     ferrite_activation_cal_mol: float = 23500.0
     activation_cal_mol: float = 27500.0
     name: str = "li1998"
     sigmoid_exponent: float = SIGMOID_EXPONENT
+    bs_reference: str = "Li et al. (1998) Bs"
+
+    def bainite_start(self, chem: dict):
+        """Bs [C] of austenite of this chemistry (element arrays, wt%): Li et al. (1998) form."""
+        return li_bs(chem["c"], chem["mn"], chem["ni"], chem["cr"], chem["mo"])
 
     def factors(self, chem: dict) -> dict:
         """Per-node composition factors, computed once per run (chem: element arrays, wt%)."""
@@ -111,3 +123,7 @@ class Li1998:
             "bainite": kirkaldy_time_constant(factors["bainite"], 0.29, grain_size, undercooling["bainite"], 2,
                                               q, temperature_c),
         }
+
+    def fraction(self, product: str, progress, factors: dict):
+        """Normalized fraction X = S^-1(sum dt/K) of a product (the same S(X) for every product)."""
+        return fraction_from_progress(progress, self.sigmoid_exponent)

@@ -2,33 +2,48 @@
 
 Method, per node (all nodes at once with numpy):
 
-* Each diffusional product p has an isothermal law tau_p(X, T) = K_p(T) S(X) (Li et al. 1998).
-  Because the law is separable, Scheil's additivity rule sum(dt / tau_p(X, T)) = 1 is exact when the
-  node carries the running sum s_p = sum(dt / K_p(T)) and X_p = S^-1(s_p); the start of a product
-  (X_p = 0.01) is then the Scheil incubation criterion sum(dt / tau_p(0.01, T)) = 1, and growth is
-  the isothermal-equivalent (fictitious) time method. Sums accrue only below the product's
-  start temperature (Ae3 of the austenite for ferrite, Acm for proeutectoid cementite, Ae1 for
-  pearlite, Bs for bainite) and above Ms.
+* Each diffusional product p has an isothermal law tau_p(X, T) = K_p(T) S_p(X) (Li et al. 1998, or
+  Kirkaldy & Venugopalan 1983). Because the law is separable, Scheil's additivity rule
+  sum(dt / tau_p(X, T)) = 1 is exact when the node carries the running sum s_p = sum(dt / K_p(T)) and
+  X_p = S_p^-1(s_p); the start of a product (X_p = 0.01) is then the Scheil incubation criterion
+  sum(dt / tau_p(0.01, T)) = 1, and growth is the isothermal-equivalent (fictitious) time method.
+  Sums accrue only below the product's start temperature (Ae3 of the austenite for ferrite, Acm for
+  proeutectoid cementite, Ae1 for pearlite, the model's Bs for bainite) and above Ms.
 * What X is normalized to: proeutectoid ferrite (cementite) -- the equilibrium fraction at the
   current temperature by the lever rule on the steel's A3 (Acm) line, so it never exceeds
   equilibrium; pearlite and bainite -- the austenite left when that product started.
+* Proeutectoid cementite (hypereutectoid austenite): neither paper gives it a law. It is given the
+  pearlite law of the model (composition factor, grain exponent, activation energy) with the
+  undercooling below the Acm of the austenite, and normalized to the lever-rule amount on the Acm
+  line. Basis: both are grain-boundary nucleated carbide reactions controlled by carbon diffusion in
+  austenite, and cementite is the leading phase of pearlite; the choice is ours, not the papers'.
+  It gives grain-boundary cementite on slow cooling only, as practice shows (common practice, no
+  source).
 * Sequence: ferrite (or cementite), then pearlite, then bainite. A product stops growing when a
   later one starts (its incubation sum has run concurrently) or when Ms is reached.
 * Carbon balance: proeutectoid ferrite (0.02 %C) or cementite (6.67 %C) forming from austenite
   of carbon C_a changes the carbon of the austenite left, C_a' = (A0 C0 - f C_product) / (A0 - f),
   with A0 and C0 the austenite fraction and carbon after austenitizing and f the proeutectoid
-  fraction formed on cooling. Pearlite and bainite take austenite at its current carbon. The
-  Ms of the austenite left follows its carbon (Andrews 1965).
+  fraction formed on cooling. Pearlite and bainite take austenite at its current carbon (their
+  own ferrite and carbide in the overall proportion of that austenite), and martensite inherits it,
+  so at every step  bulk C = 0.02 F + 6.67 Cm + C_a (P + B + M + A)  holds exactly
+  (F, Cm: all ferrite and cementite, undissolved or formed; tested). The Ms of the austenite left
+  follows its carbon (steel.critical.martensite_start).
 * Martensite: when T first falls below the Ms of the austenite left, the diffusional reactions stop
   and f_M = A_Ms (1 - exp(-alpha (Ms - T_min))) (Koistinen & Marburger 1959), with A_Ms the
   austenite at that moment and T_min the lowest temperature reached. What is left is retained
   austenite.
+* Fractions: austenite is 1 minus the sum of the products, each of which only grows and is bounded
+  by the austenite it draws on, so every node's fractions lie in [0, 1] and sum to 1 (tested).
 * Latent heat released: sum over products of (fraction formed) x (enthalpy of that reaction).
+
+The stepper does not care where temperatures come from: the thermal solver drives it, and
+follow_history() drives it along prescribed histories (diagrams, end-quench positions, tests).
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -38,12 +53,11 @@ from ..steel.critical import (
     EUTECTOID_C_WT,
     FERRITE_C_WT,
     acm_linear,
-    andrews_ms,
     carbon_on_acm,
     li_bs,
+    martensite_start,
 )
 from .martensite import koistinen_marburger, van_bohemen_sietsma_alpha
-from .sigmoid import fraction_from_progress
 
 #: Final phases reported, in this order.
 PRODUCTS = ("ferrite", "cementite", "pearlite", "bainite", "martensite", "austenite")
@@ -58,6 +72,9 @@ LATENT_HEAT_J_KG = {"ferrite": 82e3, "cementite": 82e3, "pearlite": 82e3, "baini
 START_FRACTION = 0.01
 #: Temperature at which the cooling rate is recorded for hardness (Maynier et al. 1978) [C].
 RATE_TEMPERATURE_C = 700.0
+#: Smallest time constant used in dt / K [s]: a zero composition factor (e.g. the Kirkaldy-Venugopalan
+#: ferrite law of an alloy-free steel) means an instantaneous reaction, not a division by zero.
+_MIN_TIME_CONSTANT_S = 1e-12
 
 
 @dataclass(frozen=True)
@@ -73,7 +90,7 @@ class SteelNodes:
     ae1: np.ndarray
     ae3_bulk: np.ndarray
     pro_start: np.ndarray       # A3 (or Acm) temperature of the austenite's carbon [C]
-    bs: np.ndarray
+    bs: np.ndarray              # Li et al. (1998) Bs; PhaseStepper replaces it by its model's Bs
     grain_size: np.ndarray
     alpha: np.ndarray           # Koistinen-Marburger rate [1/K]
     chem: dict                  # austenite chemistry, element -> array [wt%]
@@ -108,9 +125,9 @@ class SteelNodes:
         )
 
     def ms(self, carbon):
-        """Ms of austenite of the given carbon and this alloy (Andrews 1965) [C]."""
+        """Ms of austenite of the given carbon and this alloy (steel.critical.martensite_start) [C]."""
         c = self.chem
-        return andrews_ms(carbon, c["mn"], c["ni"], c["cr"], c["mo"])
+        return martensite_start(carbon, c["mn"], c["ni"], c["cr"], c["mo"])
 
     def proeutectoid_equilibrium(self, temperature_c):
         """Equilibrium fraction of proeutectoid ferrite (or cementite) formed from the austenite at T,
@@ -129,10 +146,10 @@ class PhaseStepper:
     """Advances the phase state of all nodes over a time step; the thermal solver drives it."""
 
     def __init__(self, nodes: SteelNodes, model, initial_c: np.ndarray):
+        nodes = replace(nodes, bs=np.asarray(model.bainite_start(nodes.chem), dtype=float) + np.zeros_like(nodes.carbon0))
         self.nodes, self.model = nodes, model
         n = nodes.carbon0.size
         self.factors = model.factors(nodes.chem)
-        self.p = model.sigmoid_exponent
         self.f = {name: np.zeros(n) for name in PRODUCTS}
         self.f["ferrite"] = nodes.ferrite0.copy()
         self.f["cementite"] = nodes.cementite0.copy()
@@ -170,15 +187,16 @@ class PhaseStepper:
         }
         k = self.model.time_constants(self.factors, nodes.grain_size, t_mid, under)
         k_pro = np.where(nodes.hyper, k["cementite"], k["ferrite"])
-        with np.errstate(divide="ignore"):
-            self.progress["pro"] += np.where(diffusional & (self.stage == 0), dt / k_pro, 0.0)
-            self.progress["pearlite"] += np.where(diffusional & (self.stage <= 1), dt / k["pearlite"], 0.0)
-            self.progress["bainite"] += np.where(diffusional & (self.stage <= 2), dt / k["bainite"], 0.0)
+        dt = np.broadcast_to(np.asarray(dt, dtype=float), t_mid.shape)
+        for name, k_p, stages in (("pro", k_pro, self.stage == 0), ("pearlite", k["pearlite"], self.stage <= 1),
+                                  ("bainite", k["bainite"], self.stage <= 2)):
+            self.progress[name] += np.where(diffusional & stages & (dt > 0),
+                                            dt / np.maximum(k_p, _MIN_TIME_CONSTANT_S), 0.0)
 
         # Proeutectoid ferrite / cementite, capped by equilibrium at the current temperature.
         grow = diffusional & (self.stage == 0)
         if grow.any():
-            x = fraction_from_progress(self.progress["pro"], self.p)
+            x = self.model.fraction("pro", self.progress["pro"], self.factors)
             target = x * nodes.proeutectoid_equilibrium(t_new)
             formed_f = np.where(grow & ~nodes.hyper, np.maximum(f["ferrite"] - nodes.ferrite0, target), f["ferrite"] - nodes.ferrite0)
             formed_c = np.where(grow & nodes.hyper, np.maximum(f["cementite"] - nodes.cementite0, target), f["cementite"] - nodes.cementite0)
@@ -193,8 +211,8 @@ class PhaseStepper:
             self.carbon = np.where(grow, np.clip(carbon, 0.0, 2.1), self.carbon)
 
         # Pearlite, then bainite: start when the incubation sum reaches X = 0.01.
-        x_p = fraction_from_progress(self.progress["pearlite"], self.p)
-        x_b = fraction_from_progress(self.progress["bainite"], self.p)
+        x_p = self.model.fraction("pearlite", self.progress["pearlite"], self.factors)
+        x_b = self.model.fraction("bainite", self.progress["bainite"], self.factors)
         start_b = diffusional & (self.stage < 2) & (x_b >= START_FRACTION)
         start_p = diffusional & (self.stage < 1) & (x_p >= START_FRACTION) & ~start_b
         self.base["pearlite"] = np.where(start_p, f["austenite"], self.base["pearlite"])
@@ -247,3 +265,59 @@ class PhaseStepper:
         """Cooling rate as each node passed 700 C [K/s]; nodes that started below 700 C give their
         first-step rate."""
         return np.where(np.isnan(self.rate_700_c_s), self._first_rate, self.rate_700_c_s)
+
+
+@dataclass
+class HistoryRun:
+    """The stepper after following prescribed histories, and (optionally) fractions at every time.
+
+    fractions_at[name] has shape (n_times, n_nodes): the fraction after each step (row 0: the start).
+    """
+
+    stepper: PhaseStepper
+    time_s: np.ndarray
+    temperature_c: np.ndarray
+    fractions_at: dict = field(default_factory=dict)
+
+    @property
+    def fractions(self) -> dict[str, np.ndarray]:
+        return self.stepper.fractions()
+
+
+def follow_history(nodes: SteelNodes, model, time_s, temperature_c, record: bool = False) -> HistoryRun:
+    """Drive the stepper along prescribed temperature histories, one per node.
+
+    time_s: (n_times,) shared by all nodes, or (n_times, n_nodes); temperature_c: (n_times, n_nodes)
+    in C. Any history is accepted (cooling, holding, reheating below the austenitizing temperature).
+
+    >>> from quenchwise.steel import Composition, austenitize
+    >>> from quenchwise.kinetics import Li1998
+    >>> state = austenitize(Composition(c=0.40, mn=0.85, si=0.25, cr=0.95, mo=0.20), 850.0)
+    >>> nodes = SteelNodes.from_states([state], [7.0], [1])
+    >>> t = np.linspace(0.0, 27.5, 826)                     # 30 K/s from 850 C to 25 C
+    >>> run = follow_history(nodes, Li1998(), t, (850.0 - 30.0 * t)[:, None])
+    >>> print({k: round(float(v[0]), 3) for k, v in run.fractions.items() if v[0] > 0})
+    {'ferrite': 0.006, 'martensite': 0.958, 'austenite': 0.036}
+    """
+    temperature_c = np.asarray(temperature_c, dtype=float)
+    if temperature_c.ndim != 2 or temperature_c.shape[1] != nodes.carbon0.size:
+        raise ValueError("temperature_c must have shape (n_times, n_nodes)")
+    time_s = np.asarray(time_s, dtype=float)
+    if time_s.ndim == 1:
+        time_s = np.broadcast_to(time_s[:, None], temperature_c.shape)
+    if time_s.shape != temperature_c.shape:
+        raise ValueError("time_s must have shape (n_times,) or that of temperature_c")
+    if np.any(np.diff(time_s, axis=0) < 0):
+        raise ValueError("time_s must not decrease")
+    stepper = PhaseStepper(nodes, model, temperature_c[0])
+    recorded = {}
+    if record:
+        recorded = {name: np.empty_like(temperature_c) for name in PRODUCTS}
+        for name in PRODUCTS:
+            recorded[name][0] = stepper.f[name]
+    for i in range(temperature_c.shape[0] - 1):
+        stepper.advance(temperature_c[i], temperature_c[i + 1], time_s[i + 1] - time_s[i])
+        if record:
+            for name in PRODUCTS:
+                recorded[name][i + 1] = stepper.f[name]
+    return HistoryRun(stepper, time_s, temperature_c, recorded)

@@ -2,6 +2,13 @@
 temperature and how much carbon that austenite carries.
 
 Equal densities of the phases are assumed, so mass and volume fractions coincide.
+
+Hypoeutectoid steels use the steel's own A3 line (Andrews 1965 Ae3 and Ae1, see a3_line_carbon);
+hypereutectoid steels use the straight plain Fe-C Acm line (critical.acm_linear) with no alloy
+correction: no published correction for chromium could be checked. For chromium bearing steels
+(52100: 1.0C-1.45Cr, hardened from about 845 C) this overstates the carbon dissolved (1.0 % where
+practice shows about 0.6-0.7 %, memory) and understates the carbide left undissolved, so Ms comes
+out low and retained austenite high. AusteniteState.warnings() reports it with every result.
 """
 
 from __future__ import annotations
@@ -24,6 +31,10 @@ from .critical import (
 
 #: Highest austenitizing temperature accepted (C): well below the solidus of steels.
 MAX_AUSTENITIZE_C = 1250.0
+#: Carbide formers (Cr+Mo+V+W, wt%) from which a hypereutectoid result warns that the plain Fe-C Acm
+#: line overstates the carbon dissolved (judgement: about a third of a percent of chromium already
+#: shifts the solvus by tens of kelvin in the isopleths, memory).
+ALLOY_ACM_WARNING_WT = 0.3
 
 
 def a3_line_carbon(temperature_c, ae1_c, ae3_c, bulk_c):
@@ -82,6 +93,29 @@ class AusteniteState:
     def austenite_composition(self) -> Composition:
         """The chemistry that drives kinetics, Ms and martensite hardness."""
         return self.composition.with_carbon(self.carbon)
+
+    def warnings(self) -> list[str]:
+        """What the engineer must know about this austenitized state (one line each).
+
+        >>> s = austenitize(Composition(c=1.04, mn=0.35, si=0.25, cr=1.45), 845.0)
+        >>> print(s.warnings()[0][:59])
+        Acm is the plain Fe-C line (no alloy correction): with 1.45
+        """
+        out = []
+        if self.ferrite > 1e-4:
+            out.append(f"austenitized below Ae3 ({self.ae3:.0f} C): {100 * self.ferrite:.1f} % ferrite "
+                       "stays untransformed (intercritical)")
+        if self.cementite > 1e-4:
+            out.append(f"austenitized below Acm ({self.acm:.0f} C): {100 * self.cementite:.1f} % carbide "
+                       f"stays undissolved; austenite carries {self.carbon:.2f} %C")
+        c = self.composition
+        carbide_formers = c.cr + c.mo + c.v + c.w
+        if self.hypereutectoid and carbide_formers >= ALLOY_ACM_WARNING_WT:
+            out.append(
+                f"Acm is the plain Fe-C line (no alloy correction): with {carbide_formers:g} % Cr+Mo+V+W the real "
+                f"austenite likely holds less than the computed {self.carbon:.2f} %C and more carbide stays "
+                "undissolved, so Ms is likely higher and retained austenite lower than shown")
+        return out
 
 
 def austenitize(composition: Composition, austenitize_c: float) -> AusteniteState:

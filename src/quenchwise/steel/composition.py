@@ -13,13 +13,33 @@ ELEMENTS = ("c", "mn", "si", "ni", "cr", "mo", "cu", "v", "w")
 #: Largest value accepted per element (wt%): beyond it the steel is not one these models address.
 HARD_LIMIT = {"c": 2.1, "mn": 3.0, "si": 3.0, "ni": 10.0, "cr": 12.0, "mo": 2.0, "cu": 2.0, "v": 1.0, "w": 3.0}
 
-#: Composition range of the steels behind the Li et al. (1998) / Kirkaldy & Venugopalan (1983)
-#: fits, per element (wt%) (memory: low-alloy steels of the isothermal transformation atlases).
-#: Outside it the result carries a warning; it is not an error.
-MODEL_RANGE = {
-    "c": (0.10, 1.10), "mn": (0.20, 2.00), "si": (0.0, 1.00), "ni": (0.0, 3.50), "cr": (0.0, 2.00),
-    "mo": (0.0, 0.70), "cu": (0.0, 0.50), "v": (0.0, 0.20), "w": (0.0, 0.50),
+#: Composition range (wt%) of the steels each correlation was fitted on, per element. Outside it a
+#: result carries a warning; it is not an error. All limits are recalled (memory) and approximate:
+#:
+#: * li1998 -- Li, Niebuhr, Meekisho & Atteridge (1998), Metall. Mater. Trans. B 29B, 661: refitted on
+#:   the isothermal diagrams of carbon and low-alloy steels of the published atlases; the paper says
+#:   it widened the composition range of the earlier model (memory).
+#: * kirkaldy1983 -- Kirkaldy & Venugopalan (1983), Phase Transformations in Ferrous Alloys,
+#:   TMS-AIME, 125: low-alloy steels of the same atlases, most reliable for the less hardenable
+#:   ones (memory); the same limits are used.
+#: * andrews1965 -- Andrews (1965), J. Iron Steel Inst. 203, 721: Ae1, Ae3 and Ms fitted on steels
+#:   below about 0.6 %C (memory); above it the formulas are extrapolated. Alloy limits of his data set
+#:   reach beyond our hard limits for Mn and Mo; they are capped at those.
+MODEL_RANGES = {
+    "li1998": {"c": (0.10, 1.10), "mn": (0.20, 2.00), "si": (0.0, 1.00), "ni": (0.0, 3.50), "cr": (0.0, 2.00),
+               "mo": (0.0, 0.70), "cu": (0.0, 0.50), "v": (0.0, 0.20), "w": (0.0, 0.50)},
+    "kirkaldy1983": {"c": (0.10, 1.10), "mn": (0.20, 2.00), "si": (0.0, 1.00), "ni": (0.0, 3.50),
+                     "cr": (0.0, 2.00), "mo": (0.0, 0.70), "cu": (0.0, 0.50), "v": (0.0, 0.20), "w": (0.0, 0.50)},
+    "andrews1965": {"c": (0.0, 0.60), "mn": (0.0, 3.0), "si": (0.0, 1.5), "ni": (0.0, 5.0), "cr": (0.0, 4.5),
+                    "mo": (0.0, 2.0)},
 }
+MODEL_LABELS = {
+    "li1998": "the Li et al. (1998) kinetics",
+    "kirkaldy1983": "the Kirkaldy & Venugopalan (1983) kinetics",
+    "andrews1965": "the Andrews (1965) critical-temperature formulas",
+}
+#: Kept for callers of the earlier single table: the default kinetics model's range.
+MODEL_RANGE = MODEL_RANGES["li1998"]
 
 
 @dataclass(frozen=True)
@@ -60,18 +80,22 @@ class Composition:
         """The same alloy with another carbon content (e.g. the carbon dissolved in austenite)."""
         return replace(self, c=min(max(carbon, 0.0), HARD_LIMIT["c"]))
 
-    def range_warnings(self) -> list[str]:
-        """Elements outside the range the kinetics models were fitted on.
+    def range_warnings(self, model: str = "li1998") -> list[str]:
+        """Elements outside the fitted range of the kinetics model and of the Andrews formulas.
+
+        model: a key of MODEL_RANGES ("li1998", "kirkaldy1983"); any other name ("none")
+        checks the critical-temperature formulas only.
 
         >>> print(*Composition(c=0.4, mn=0.7, mo=1.2).range_warnings())
-        mo = 1.2 wt% is outside the kinetics models' range 0-0.7 wt%; treat results as extrapolation
+        mo = 1.2 wt% is outside the range of the Li et al. (1998) kinetics (0-0.7 wt%); treat results as extrapolation
+        >>> len(Composition(c=0.8, mn=0.7).range_warnings("none"))
+        1
         """
         out = []
-        for name, (lo, hi) in MODEL_RANGE.items():
-            value = getattr(self, name)
-            if value < lo or value > hi:
-                out.append(
-                    f"{name} = {value:g} wt% is outside the kinetics models' range {lo:g}-{hi:g} wt%; "
-                    "treat results as extrapolation"
-                )
+        for key in ((model,) if model in MODEL_RANGES else ()) + ("andrews1965",):
+            for name, (lo, hi) in MODEL_RANGES[key].items():
+                value = getattr(self, name)
+                if value < lo or value > hi:
+                    out.append(f"{name} = {value:g} wt% is outside the range of {MODEL_LABELS[key]} "
+                               f"({lo:g}-{hi:g} wt%); treat results as extrapolation")
         return out
