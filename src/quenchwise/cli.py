@@ -450,3 +450,90 @@ def sheet(
         lines.append("wrote   " + ", ".join(str(f) for f in files))
         _emit(json_out, {"title": case.title, "key_numbers": keys, "depths": rows, "case_sha256": case.source_sha256,
                          "files": [str(f) for f in files]}, "\n".join(lines))
+
+
+# -- diagram: TTT / CCT of the case's steel ------------------------------------------------------
+DIAGRAM_KINDS = ("ttt", "cct")
+
+
+def _diagram_text(case, summary: dict, files: list[Path]) -> str:
+    s = summary
+    steel = s["steel"]
+    chem = ", ".join(f"{k.capitalize()} {v:g}" for k, v in steel["composition_wt_pct"].items() if v > 0)
+    levels = ", ".join(f"{k} {v:.0f} C" for k, v in s["levels_c"].items())
+    lines = [f"{case.title or 'case'}: {s['kind'].upper()} diagram, kinetics {s['model']}",
+             f"steel   {steel['grade'] or 'custom'} ({chem} wt%), austenitized {s['austenitize_c']:g} C, "
+             f"{s['austenite_carbon_wt_pct']:.2f} %C in austenite, grain size {s['grain_size']:g}",
+             f"levels  {levels}  ({steel['critical_temperatures']})"]
+    if s["kind"] == "ttt":
+        noses = "; ".join(f"{p} {n['time_s']:.3g} s at {n['temperature_c']:.0f} C"
+                          for p, n in s["noses"].items() if n is not None)
+        lines.append(f"noses   {noses or 'none within 11 days'}")
+        bay = s["bay"]
+        lines.append("bay     " + (f"{bay['time_s']:.3g} s at {bay['temperature_c']:.0f} C (longest start between the "
+                                   "upper and the bainite nose)" if bay else "none (no local maximum of the start "
+                                                                               "between the noses)"))
+    else:
+        for family, label in (("constant_rate", "constant rates"), ("newtonian", "Newtonian, rate at 700 C")):
+            c = s["critical_rates_k_s"][family]
+            lines.append(f"critical ({label}): " + "; ".join(
+                f"{k.replace('_', ' ')} {'-' if v is None else f'{v:.3g} K/s'}" for k, v in c.items()))
+        lines.append(f"{'path':<14}{'K/s at 700':>11}{'F %':>6}{'C %':>6}{'P %':>6}{'B %':>6}{'M %':>6}{'A %':>6}"
+                     f"{'HV':>7}{'HRC':>6}")
+        for p in s["paths"]:
+            pct = p["final_pct"]
+            lines.append(f"{p['label']:<14}{p['rate_700_c_s']:>11.3g}" + "".join(
+                f"{pct.get(k, 0.0):>6.0f}" for k in ("ferrite", "cementite", "pearlite", "bainite", "martensite",
+                                                     "austenite"))
+                + f"{_fmt(p['hv'], '{:.0f}'):>7}{_fmt(p['hrc'], '{:.0f}'):>6}")
+    for w in s["warnings"]:
+        lines.append(f"warning {w}")
+    lines.append("wrote   " + ", ".join(str(f) for f in files))
+    return "\n".join(lines)
+
+
+@app.command()
+def diagram(
+    case_file: Path = typer.Argument(..., help="Case file (TOML): its [steel] and [transform] tables, and for "
+                                               "CCT the bath temperature of its quench."),
+    kind: str = typer.Option(..., "--kind", "-k", help="ttt (isothermal holds) or cct (continuous cooling)."),
+    out: Path = typer.Option(..., "--out", "-o", help="Folder for the figure (PNG, SVG), the curve data (CSV) "
+                                                      "and the summary (JSON)."),
+    json_out: bool = typer.Option(False, "--json", help="Print the summary as one JSON object, nothing else."),
+    overwrite: bool = typer.Option(False, "--overwrite", help="Replace a diagram already in --out."),
+) -> None:
+    """TTT or CCT diagram of the case's steel with the case's kinetics model."""
+    with _guard():
+        from .case import load_case
+        from .kinetics import MODELS, critical_temperature_note
+        from .kinetics.diagrams import CRITICAL_RATE_MEANING, cct_diagram, ttt_diagram
+        from .plots import cct_figure, ttt_figure
+        from .results import write_table_csv
+        from .steel import austenitize
+
+        kind = kind.strip().lower()
+        if kind not in DIAGRAM_KINDS:
+            raise InputError("--kind", kind, "ttt or cct")
+        _check_out_dir(out, overwrite, markers=(f"{kind}.csv",))
+        case = load_case(case_file)
+        if case.model not in MODELS:
+            raise InputError("transform.model", case.model, "a kinetics model for a diagram: " + ", ".join(MODELS))
+        state = austenitize(case.composition, case.austenitize_c)
+        model = MODELS[case.model]()
+        _activity(f"computing the {kind.upper()} diagram of {case_file}")
+        if kind == "ttt":
+            d = ttt_diagram(state, case.grain_size, model, martensite_law=case.martensite)
+        else:
+            d = cct_diagram(state, case.grain_size, model, bath_c=case.outer.bath_c, martensite_law=case.martensite)
+        summary = {"title": case.title, **d.summary(),
+                   "steel": {"grade": case.grade, "composition_wt_pct": case.composition.as_dict(),
+                             "critical_temperatures": critical_temperature_note(case.model)},
+                   "warnings": case.composition.range_warnings(case.model) + state.warnings()}
+        if kind == "cct":
+            summary["critical_rate_meaning"] = CRITICAL_RATE_MEANING
+        with _staged(out) as (staging, files):
+            write_table_csv(staging / f"{kind}.csv", d.rows())
+            (staging / f"{kind}_summary.json").write_text(json.dumps({**summary, "caution": CAUTION}, indent=1),
+                                                          "utf-8")
+            (ttt_figure if kind == "ttt" else cct_figure)(d, staging)
+        _emit(json_out, {**summary, "files": [str(f) for f in files]}, _diagram_text(case, summary, files))

@@ -4,6 +4,15 @@ Maynier, Jungmann & Dollet (1978), "Creusot-Loire system for the prediction of t
 properties of low alloy steel products", in Hardenability Concepts with Applications to Steel,
 TMS-AIME, 518-545 (coefficients: memory). Vr is the cooling rate at 700 C in C/h; the chemistry
 is that of the austenite (its carbon, not the bulk carbon, after austenitizing).
+
+How the mixture counts what Maynier's groups do not cover (hardness_hv):
+
+* retained austenite: a phase of its own at RETAINED_AUSTENITE_HV (soft; memory);
+* undissolved carbide (hypereutectoid steels austenitized below Acm): left out and the rest
+  renormalized, because a hardness indent measures the matrix in which fine carbides sit and
+  Maynier's martensite formula already rests on the carbon in solution, not the bulk carbon;
+* proeutectoid cementite formed on cooling: counted with ferrite-pearlite;
+* undissolved ferrite (intercritical austenitizing): counted with ferrite-pearlite.
 """
 
 from __future__ import annotations
@@ -59,6 +68,24 @@ def maynier_ferrite_pearlite_hv(rate_c_h, c, si=0.0, mn=0.0, ni=0.0, cr=0.0, mo=
             + _log_rate(rate_c_h) * (10.0 - 19.0 * si + 4.0 * ni + 8.0 * cr + 130.0 * v))
 
 
+def phase_hardness_hv(rate_700_c_s, chem: dict) -> dict:
+    """HV of each Maynier phase group at each node: keys martensite, bainite, ferrite_pearlite.
+
+    rate_700_c_s [K/s] cooling rate at 700 C; chem: austenite chemistry, element -> wt%.
+
+    >>> h = phase_hardness_hv(np.array([100.0]), dict(c=0.4, si=0.25, mn=0.85, cr=0.95, mo=0.2))
+    >>> {k: round(float(v[0])) for k, v in h.items()}
+    {'martensite': 655, 'bainite': 428, 'ferrite_pearlite': 252}
+    """
+    rate_c_h = np.asarray(rate_700_c_s, dtype=float) * 3600.0
+    e = {k: chem.get(k, 0.0) for k in ("c", "si", "mn", "ni", "cr", "mo", "v")}
+    return {
+        "martensite": maynier_martensite_hv(rate_c_h, e["c"], e["si"], e["mn"], e["ni"], e["cr"]),
+        "bainite": maynier_bainite_hv(rate_c_h, e["c"], e["si"], e["mn"], e["ni"], e["cr"], e["mo"]),
+        "ferrite_pearlite": maynier_ferrite_pearlite_hv(rate_c_h, **e),
+    }
+
+
 def hardness_hv(fractions: dict, rate_700_c_s, chem: dict, undissolved_cementite=0.0):
     """As-quenched Vickers hardness of each node, the volume-weighted mean of its phases.
 
@@ -71,16 +98,15 @@ def hardness_hv(fractions: dict, rate_700_c_s, chem: dict, undissolved_cementite
     >>> chem = dict(c=0.4, si=0.25, mn=0.85, ni=0.0, cr=0.95, mo=0.2, v=0.0)
     >>> round(float(hardness_hv(f, np.array([100.0]), chem)[0]))
     655
+    >>> f = {"martensite": np.array([0.9]), "cementite": np.array([0.05]), "austenite": np.array([0.05])}
+    >>> round(float(hardness_hv(f, np.array([100.0]), chem, undissolved_cementite=0.05)[0]))   # (0.9 x 655 + 0.05 x 250) / 0.95
+    633
     """
-    rate_c_h = np.asarray(rate_700_c_s, dtype=float) * 3600.0
-    e = {k: chem.get(k, 0.0) for k in ("c", "si", "mn", "ni", "cr", "mo", "v")}
-    hv_m = maynier_martensite_hv(rate_c_h, e["c"], e["si"], e["mn"], e["ni"], e["cr"])
-    hv_b = maynier_bainite_hv(rate_c_h, e["c"], e["si"], e["mn"], e["ni"], e["cr"], e["mo"])
-    hv_fp = maynier_ferrite_pearlite_hv(rate_c_h, **e)
-    zero = np.zeros_like(rate_c_h)
+    h = phase_hardness_hv(rate_700_c_s, chem)
+    zero = np.zeros_like(h["martensite"])
     get = lambda name: fractions.get(name, zero)  # noqa: E731
     diffusional = get("ferrite") + get("pearlite") + np.maximum(get("cementite") - undissolved_cementite, 0.0)
     total = diffusional + get("bainite") + get("martensite") + get("austenite")
-    hv = (get("martensite") * hv_m + get("bainite") * hv_b + diffusional * hv_fp
+    hv = (get("martensite") * h["martensite"] + get("bainite") * h["bainite"] + diffusional * h["ferrite_pearlite"]
           + get("austenite") * RETAINED_AUSTENITE_HV)
     return hv / np.where(total > 0, total, 1.0)
