@@ -36,6 +36,8 @@ class Result:
     cooling_rate_700_c_s: np.ndarray
     ms_c: float
     extra: dict = field(default_factory=dict)
+    hv_tempered: np.ndarray | None = None   # after the case's [temper] (None: no temper)
+    hrc_tempered: np.ndarray | None = None
 
     # -- geometry of the nodes ----------------------------------------------------------------
     @property
@@ -89,6 +91,12 @@ class Result:
                 "retained_austenite_pct": _round(100.0 * self.at(self.fractions["austenite"], r), 1),
                 "cooling_rate_700_c_s": _round(self.at(self.cooling_rate_700_c_s, r), 3),
             })
+            rows[-1].update(_other_scales(hv, hrc))
+            if self.hv_tempered is not None:
+                hv_t = self.at(self.hv_tempered, r)
+                hrc_t = _nan_aware(self, self.hrc_tempered, r)
+                rows[-1].update({"hrc_tempered": _round(hrc_t, 1), "hv_tempered": _round(hv_t, 0)})
+                rows[-1].update({f"{k}_tempered": v for k, v in _other_scales(hv_t, hrc_t).items()})
         return {
             "title": case.title,
             "program": f"quenchwise {__version__}",
@@ -109,6 +117,7 @@ class Result:
             "time_to_end_s": round(float(self.history.time_s[-1]), 3),
             "steps": self.history.steps,
             "points": rows,
+            **{k: self.extra[k] for k in ("temper", "di") if k in self.extra},
             "warnings": self.warnings(),
         }
 
@@ -127,6 +136,15 @@ class Result:
 #: Keep an oil bath at least this far below its flash point (common practice, no source: shops
 #: commonly keep about 50-60 C of margin below the open-cup flash point).
 FLASH_MARGIN_K = 55.0
+
+
+def _other_scales(hv: float, hrc: float) -> dict:
+    """Where HRC does not apply (below HRC 20), the hardness also in Rockwell B and Brinell when
+    those scales cover it (ASTM E140; never extrapolated): {"hrb": .., "hb": ..} or {}."""
+    if np.isfinite(hrc) or not np.isfinite(hv):
+        return {}
+    from .hardness import hb_from_hv, hrb_from_hv
+    return {"hrb": _round(float(hrb_from_hv(hv)), 1), "hb": _round(float(hb_from_hv(hv)), 0)}
 
 
 def _round(v, nd):
@@ -161,13 +179,16 @@ def profile_csv_text(result: Result) -> str:
     names = result.fraction_names
     out = io.StringIO()
     w = csv.writer(out, lineterminator="\n")
-    w.writerow(["depth_mm", "position_mm", *names, "hv", "hrc", "cooling_rate_700_c_s"])
+    tempered = result.hv_tempered is not None
+    w.writerow(["depth_mm", "position_mm", *names, "hv", "hrc", "cooling_rate_700_c_s",
+                *(("hv_tempered", "hrc_tempered") if tempered else ())])
     order = np.argsort(result.depth_mm, kind="stable")
     for j in order:
         w.writerow([f"{result.depth_mm[j]:.4f}", f"{result.position_mm[j]:.4f}",
                     *(f"{result.fractions[n][j]:.5f}" for n in names),
                     _fmt(result.hv[j], "{:.1f}"), _fmt(result.hrc[j], "{:.1f}"),
-                    _fmt(result.cooling_rate_700_c_s[j], "{:.5g}")])
+                    _fmt(result.cooling_rate_700_c_s[j], "{:.5g}"),
+                    *((_fmt(result.hv_tempered[j], "{:.1f}"), _fmt(result.hrc_tempered[j], "{:.1f}")) if tempered else ())])
     return out.getvalue()
 
 
@@ -192,6 +213,9 @@ def write_result_h5(result: Result, path: Path) -> None:
                 f.create_dataset(name, data=result.fractions[name])
             f.create_dataset("hv", data=result.hv)
             f.create_dataset("hrc", data=result.hrc)
+            if result.hv_tempered is not None:
+                f.create_dataset("hv_tempered", data=result.hv_tempered)
+                f.create_dataset("hrc_tempered", data=result.hrc_tempered)
             f.create_dataset("cooling_rate_700_c_s", data=result.cooling_rate_700_c_s)
             f.attrs["case"] = result.case.source_text
             f.attrs["case_sha256"] = result.case.source_sha256

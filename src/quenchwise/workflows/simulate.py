@@ -12,6 +12,8 @@ import numpy as np
 
 from ..case import Case
 from ..hardness import hardness_hv, hrc_from_hv
+from ..hardness.hardenability import a255_ideal_diameter
+from ..hardness.tempering import tempered_hardness_hv
 from ..kinetics import MODELS, PhaseStepper, SteelNodes
 from ..results import Result
 from ..steel import austenitize
@@ -74,9 +76,37 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
                 chem = state.austenite_composition.as_dict()
                 hv = hardness_hv(fractions, rate, chem, undissolved_cementite=state.cementite)
                 ms = stepper.ms_at_start[sl].copy()
-            results[i] = Result(case=case, state=state, history=history, fractions=fractions, hv=hv,
-                                hrc=hrc_from_hv(hv), cooling_rate_700_c_s=rate, ms_c=float(ms[0]) if n else np.nan)
+            result = Result(case=case, state=state, history=history, fractions=fractions, hv=hv,
+                            hrc=hrc_from_hv(hv), cooling_rate_700_c_s=rate, ms_c=float(ms[0]) if n else np.nan)
+            _add_hardness_extras(result)
+            results[i] = result
     return results  # type: ignore[return-value]
+
+
+def _add_hardness_extras(result: Result) -> None:
+    """Tempered hardness when the case tempers, and the composition DI (ASTM A255) for the summary.
+
+    Only the composition DI is added here: the tool's own DI from physics needs a sweep of extra
+    bar solves (workflows.ideal_diameter) and is reported by the jominy command instead, so that a
+    run costs what its one case costs.
+    """
+    case, state = result.case, result.state
+    di = a255_ideal_diameter(case.composition)
+    result.extra["di"] = {"a255": di.as_dict()}
+    temper = getattr(case, "temper", None)
+    if temper is None or case.model == "none":
+        return
+    chem = state.austenite_composition.as_dict()
+    hv_t, notes = tempered_hardness_hv(result.fractions, result.cooling_rate_700_c_s, chem, temper.temperature_c,
+                                       temper.hours, undissolved_cementite=state.cementite)
+    if temper.temperature_c >= state.ae1:
+        notes.append(f"temper at {temper.temperature_c:g} C is at or above Ae1 ({state.ae1:.0f} C): austenite "
+                     "re-forms, which the tempering relation does not cover")
+    result.hv_tempered, result.hrc_tempered = hv_t, hrc_from_hv(hv_t)
+    result.extra["temper"] = {"temperature_c": temper.temperature_c, "hours": temper.hours,
+                              "method": "Hollomon & Jaffe (1945) parameter, C = 20; Grange, Hribal & Porter (1977) "
+                                        "tempered martensite (table values: memory)"}
+    result.extra.setdefault("warnings", []).extend(notes)
 
 
 def simulate_case(case: Case, progress: Callable[[float], None] | None = None) -> Result:
