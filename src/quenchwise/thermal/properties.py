@@ -4,6 +4,11 @@ Tables are typical values for low-alloy steels (memory; shapes as in handbook pr
 carbon and low-alloy steels): austenite conducts about half as well as the ferritic products.
 Density is constant (7 800 kg/m3): the 1-4 % volume change of the transformations is neglected
 so mass and volume fractions coincide and the mesh does not move.
+
+Between the table points the values are linear in temperature and held constant beyond the ends
+(as numpy.interp does). The sensible enthalpy of a phase group, h(T) = integral from 0 C to T of
+cp dT, is then piecewise quadratic and is evaluated exactly (``PropertyTables``); the solver uses
+it to keep the energy balance exact with lagged properties.
 """
 
 from __future__ import annotations
@@ -64,3 +69,119 @@ def mixed_properties(temperature_c: np.ndarray, fractions: dict[str, np.ndarray]
         total += frac
     total = np.where(total > 0, total, 1.0)
     return k / total, cp / total
+
+
+#: Phase groups with their own tables, in a fixed order (rows of the weight arrays below).
+GROUPS = ("austenite", "ferritic", "martensite")
+
+
+def group_weights(fractions: dict[str, np.ndarray], n: int | None = None) -> np.ndarray:
+    """Volume fraction of each phase group (rows in GROUPS order), normalized to sum 1 per node.
+
+    >>> w = group_weights({"austenite": np.array([0.25]), "pearlite": np.array([0.5]),
+    ...                    "bainite": np.array([0.25])})
+    >>> w[:, 0].tolist()
+    [0.25, 0.75, 0.0]
+    """
+    if n is None:
+        n = len(next(iter(fractions.values())))
+    w = np.zeros((len(GROUPS), n))
+    for name, frac in fractions.items():
+        w[GROUPS.index(_GROUP[name])] += frac
+    total = w.sum(axis=0)
+    return w / np.where(total > 0, total, 1.0)
+
+
+class PropertyTables:
+    """The tables above for many nodes at once: conductivity, specific heat and sensible enthalpy
+    of phase mixtures.
+
+    h(T) of a group is the exact integral of its piecewise-linear cp from 0 C; beyond the table
+    ends cp is constant, so h continues linearly. All three are linear in the group weights, so
+    the tables of a node's mixture are formed once (``mixture``) and then looked up with one
+    shared segment index.
+
+    >>> tab = PropertyTables()
+    >>> mix = tab.mixture(group_weights({"austenite": np.array([1.0, 1.0])}))
+    >>> k, cp, h = mix.evaluate(np.array([200.0, 800.0]))
+    >>> cp.tolist(), round(float(h[0]), 1)      # h(200) = (480 + 507) / 2 * 200
+    ([507.0, 587.0], 98700.0)
+    >>> np.round(mix.temperature_for_enthalpy(h, np.array([150.0, 900.0])), 9).tolist()
+    [200.0, 800.0]
+    """
+
+    def __init__(self):
+        self.grid = _T
+        self.k = np.array([_CONDUCTIVITY[g] for g in GROUPS])
+        self.cp = np.array([_SPECIFIC_HEAT[g] for g in GROUPS])
+        width = np.diff(self.grid)
+        # Exact enthalpy at the grid points (the trapezoid rule is exact for linear cp), h(0 C) = 0.
+        steps = 0.5 * (self.cp[:, 1:] + self.cp[:, :-1]) * width
+        h = np.concatenate([np.zeros((len(GROUPS), 1)), np.cumsum(steps, axis=1)], axis=1)
+        self.h = h - np.array([np.interp(0.0, self.grid, row) for row in h])[:, None]
+        self.k_slope = np.diff(self.k, axis=1) / width
+        self.cp_slope = np.diff(self.cp, axis=1) / width
+
+    def mixture(self, weights: np.ndarray, out: "MixedProperties | None" = None) -> "MixedProperties":
+        """Tables of each node's phase mixture; weights from group_weights (rows in GROUPS order).
+        With out (a mixture of the same nodes), its arrays are overwritten instead of allocated."""
+        w = weights.T
+        if out is None:
+            return MixedProperties(self.grid, w @ self.k, w @ self.k_slope, w @ self.cp, w @ self.cp_slope, w @ self.h)
+        for table, target in ((self.k, out.k2), (self.k_slope, out.k_slope2), (self.cp, out.cp2),
+                              (self.cp_slope, out.cp_slope2), (self.h, out.h2)):
+            np.matmul(w, table, out=target)
+        return out
+
+
+class MixedProperties:
+    """Per-node property tables of a phase mixture on the common temperature grid: values at the
+    grid points (n, m) and slopes of the segments (n, m - 1)."""
+
+    def __init__(self, grid, k, k_slope, cp, cp_slope, h):
+        self.grid = grid
+        n, m = cp.shape
+        self.k2, self.k_slope2, self.cp2, self.cp_slope2, self.h2 = k, k_slope, cp, cp_slope, h
+        # Flat views of the same memory (updated in place by PropertyTables.mixture(out=...)).
+        self.k, self.k_slope, self.cp, self.cp_slope, self.h = (a.reshape(-1) for a in (k, k_slope, cp, cp_slope, h))
+        self.cp_first, self.cp_last = cp[:, 0], cp[:, -1]
+        self.row = np.arange(n) * m
+        self.row_slope = np.arange(n) * (m - 1)
+
+    def _locate(self, temperature_c):
+        t = np.asarray(temperature_c, dtype=float)
+        lo, hi = self.grid[0], self.grid[-1]
+        tc = np.clip(t, lo, hi)
+        j = np.clip(np.searchsorted(self.grid, tc, side="right") - 1, 0, self.grid.size - 2)
+        return t, tc - self.grid[j], self.row + j, self.row_slope + j
+
+    def _cp_h(self, t, u, at, at_slope):
+        cp0, slope = self.cp[at], self.cp_slope[at_slope]
+        cp = cp0 + slope * u
+        h = (self.h[at] + (cp0 + 0.5 * slope * u) * u
+             + self.cp_first * np.minimum(t - self.grid[0], 0.0) + self.cp_last * np.maximum(t - self.grid[-1], 0.0))
+        return cp, h
+
+    def evaluate(self, temperature_c):
+        """(conductivity [W/(m K)], specific heat [J/(kg K)], enthalpy [J/kg]) of each node."""
+        t, u, at, at_slope = self._locate(temperature_c)
+        k = self.k[at] + self.k_slope[at_slope] * u
+        cp, h = self._cp_h(t, u, at, at_slope)
+        return k, cp, h
+
+    def enthalpy(self, temperature_c):
+        """(specific heat [J/(kg K)], enthalpy [J/kg]) of each node."""
+        return self._cp_h(*self._locate(temperature_c))
+
+    def temperature_for_enthalpy(self, enthalpy, guess, iterations: int = 3):
+        """Temperature [C] at which each node's mixture has the given enthalpy [J/kg].
+
+        Newton's method from guess: h is increasing (cp > 0) and piecewise quadratic, so from a
+        guess within a time step's change (error e) each iteration leaves about
+        e^2 |dcp/dT| / (2 cp) (1e-3 K -> 1e-10 K); the fixed count (not "until converged over
+        all nodes") keeps a node's answer independent of the other nodes solved with it."""
+        t = np.array(guess, dtype=float)
+        for _ in range(iterations):
+            cp, h = self.enthalpy(t)
+            t -= (h - enthalpy) / cp
+        return t
