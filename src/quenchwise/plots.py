@@ -197,10 +197,10 @@ def _steel_line(state, grain_size: float, model: str) -> str:
             f"grain size {grain_size:g}, kinetics {model}")
 
 
-def _levels(ax, levels: dict, x_right: float, skip=()) -> None:
+def _levels(ax, levels: dict, x_right: float) -> None:
     lo, hi = ax.get_ylim()
     for name, value in levels.items():
-        if name in skip or not np.isfinite(value) or not lo < value < hi:
+        if not np.isfinite(value) or not lo < value < hi:
             continue
         colour, style = _LEVEL_STYLE.get(name, ("#8d8d8d", "-."))
         ax.axhline(value, color=colour, lw=0.8, ls=style, alpha=0.8)

@@ -9,6 +9,7 @@ A kinetics model is a small frozen dataclass with
     fraction(product, progress, factors) -> X = S^-1(sum dt/K) ("pro", "pearlite", "bainite").
 """
 
+from ..steel.critical import ACM_METHOD, AE_METHOD, MS_METHOD
 from .kirkaldy1983 import Kirkaldy1983
 from .li1998 import Li1998
 from .martensite import koistinen_marburger, van_bohemen_sietsma_alpha
@@ -23,8 +24,6 @@ def critical_temperature_note(model: str) -> str:
     >>> critical_temperature_note("kirkaldy1983")
     'Andrews (1965) Ae1/Ae3; Andrews (1965) product Ms; straight Fe-C Acm (no alloy correction); Kirkaldy & Venugopalan (1983) Bs'
     """
-    from ..steel.critical import ACM_METHOD, AE_METHOD, MS_METHOD
-
     parts = [AE_METHOD, MS_METHOD, ACM_METHOD]
     if model in MODELS:
         parts.append(MODELS[model].bs_reference)

@@ -52,7 +52,7 @@ CCT_STEP_K = 1.0
 CCT_END_ABOVE_BATH_K = 2.0
 
 
-def _levels(state: AusteniteState, nodes: SteelNodes, bs: float, model) -> dict:
+def _levels(state: AusteniteState, nodes: SteelNodes, bs: float) -> dict:
     ms = float(nodes.ms(nodes.carbon0)[0])
     alpha = float(nodes.alpha[0])
     levels = {"Acm" if state.hypereutectoid else "Ae3": state.upper_critical, "Ae1": state.ae1}
@@ -197,7 +197,7 @@ def ttt_diagram(state: AusteniteState, grain_size: float, model, martensite_law:
     total_finish = _first_crossing(TTT_TIMES_S, transformed, np.full(temps.size, FINISH), log_time=True)[0]
     return TTTDiagram(model=model.name, state=state, grain_size=float(grain_size), temperature_c=temps,
                       start_s=start, finish_s=finish, total_start_s=total_start, total_finish_s=total_finish,
-                      levels_c=_levels(state, nodes, bs, model), products=tuple(products))
+                      levels_c=_levels(state, nodes, bs), products=tuple(products))
 
 
 # -- CCT ------------------------------------------------------------------------------------------
@@ -367,9 +367,8 @@ def cct_diagram(state: AusteniteState, grain_size: float, model, bath_c: float =
             "no_ferrite_pearlite": _critical_rate(r, diffusional[sl], START, above=True),
             "first_martensite": _critical_rate(r, formed["martensite"][-1][sl], START, above=False),
         }
-    probe_bs = float(np.asarray(model.bainite_start(nodes.chem))[0])
     return CCTDiagram(model=model.name, state=state, grain_size=float(grain_size), bath_c=float(bath_c),
-                      levels_c=_levels(state, nodes, probe_bs, model), paths=paths, critical_rates_k_s=critical)
+                      levels_c=_levels(state, nodes, float(st.nodes.bs[0])), paths=paths, critical_rates_k_s=critical)
 
 
 #: What each critical rate means (for summaries and the README).

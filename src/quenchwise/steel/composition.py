@@ -38,8 +38,6 @@ MODEL_LABELS = {
     "kirkaldy1983": "the Kirkaldy & Venugopalan (1983) kinetics",
     "andrews1965": "the Andrews (1965) critical-temperature formulas",
 }
-#: Kept for callers of the earlier single table: the default kinetics model's range.
-MODEL_RANGE = MODEL_RANGES["li1998"]
 
 
 @dataclass(frozen=True)
