@@ -7,8 +7,8 @@ so mass and volume fractions coincide and the mesh does not move.
 
 Between the table points the values are linear in temperature and held constant beyond the ends
 (as numpy.interp does). The sensible enthalpy of a phase group, h(T) = integral from 0 C to T of
-cp dT, is then piecewise quadratic and is evaluated exactly (``PropertyTables``); the solver uses
-it to keep the energy balance exact with lagged properties.
+cp dT, is then piecewise quadratic and is evaluated exactly (``PropertyTables``); the solver
+converts each step's energy to temperature through it, which keeps its energy balance exact.
 """
 
 from __future__ import annotations

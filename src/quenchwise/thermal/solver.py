@@ -26,15 +26,26 @@ with SteelNodes.from_states(..., counts=list(solver.counts))); workflows.simulat
 Surface conditions. At a quenched surface the film coefficient h(T_surface) acts in series with
 the conductance of the half cell between the surface and the cell centre, 2k/dx; the surface
 temperature is estimated from that series pair (one fixed-point pass for h). The resulting
-coefficient g multiplies (T_cell - T_bath) as an implicit sink. Properties, h and g are lagged by
-one step. All surfaces of a batch are evaluated at once (the quenchant tables are padded into one
-array), with no Python loop over cases.
+coefficient g multiplies (T_cell - T_bath) as an implicit sink. All surfaces of a batch are
+evaluated at once (the quenchant tables are padded into one array), with no Python loop over cases.
+
+Nonlinear coefficients (conductivity, h, specific heat) are not iterated: each step evaluates them
+at the temperatures extrapolated to the end of the step, T_n + w (T_n - T_(n-1)), which keeps the
+scheme second order (merely lagging them by one step left the centre history of a 60 mm bar in
+oil 1.6 % of the span off the converged answer; now about 0.5 %, mostly from the kinetics).
+The specific heat used is the secant of the mixture's enthalpy from T_n to the extrapolated
+temperature.
+
+Step control, per case: the next step is the last one scaled by 0.9 times the smallest of
+max_temperature_step_k / (largest temperature change), max_fraction_step / (largest fraction
+change) and max_relative_step / (largest change relative to the node's distance from the bath),
+clipped to [0.3, max_step_growth]. The relative limit keeps the slow approach to the bath accurate.
 
 Time discretization: variable-step BDF2 (second order, A-stable), started with one implicit Euler
 step. With step ratio w = dt_n / dt_(n-1), a0 = (1 + 2w) / (1 + w), b = w^2 / (1 + w) and
 C = rho w_r (w_r the radius weight), each node solves
 
-    C [a0 cp_n (T - T_n) - b e_(n-1)] = dt_n (conduction + surface terms at T),
+    C [a0 cp (T - T_n) - b e_(n-1)] = dt_n (conduction + surface terms at T),
 
 where e_(n-1) [J/kg] is the sensible enthalpy the node gained by conduction in the previous step.
 FiPy carries this as one transient coefficient acting on T - T_old with the implicit surface sink
@@ -43,8 +54,9 @@ folded in (one term fewer to build per step).
 Energy is conserved exactly, step by step:
 
 * the conduction increment is converted to temperature through the exact enthalpy of the phase
-  mixture, h(T_new) = h(T_n) + cp_n (T - T_n), instead of T itself (cp is lagged; without this
-  the lag would create or destroy sensible heat wherever cp varies with temperature);
+  mixture, h(T_new) = h(T_n) + cp (T - T_n), instead of taking T itself (cp is only an estimate
+  of the secant over the step; without this, its error would create or destroy sensible heat
+  wherever cp varies with temperature);
 * the history term is the previous step's conduction enthalpy only, not the temperature change
   including the latent jump (otherwise BDF2 would extrapolate each latent release into the next
   step and create heat: about 6 % of the heat removed in a 60 mm oil-quenched bar);
@@ -69,6 +81,7 @@ from typing import Callable
 import fipy as fp
 import numpy as np
 from fipy.solvers.scipy import LinearLUSolver
+from scipy.linalg import solve_banded
 
 from .geometry import Section
 from .properties import DENSITY_KG_M3, PropertyTables, group_weights
@@ -163,6 +176,32 @@ class CaseHistory:
     latent_j: float = 0.0           # latent heat released, same measure
     steps: int = 0
     extra: dict = field(default_factory=dict)
+
+
+class _TridiagonalSolver(LinearLUSolver):
+    """FiPy's direct solver specialized to the matrices of a 1-D mesh, which are tridiagonal:
+    the three diagonals of the matrix FiPy assembled go to LAPACK's banded LU (scipy.linalg.
+    solve_banded) instead of a general sparse LU with fill-reducing ordering. One exact solve; the
+    residual is checked and, should the matrix ever not be tridiagonal, FiPy's general LU solve
+    takes over. Rows of different sections never mix, so each section's answer is the same
+    whatever else is in the batch."""
+
+    def _solve_(self, L, x, b):
+        n = L.shape[0]
+        if n < 3:
+            return super()._solve_(L, x, b)
+        ab = np.zeros((3, n))
+        ab[0, 1:] = L.diagonal(1)
+        ab[1] = L.diagonal()
+        ab[2, :-1] = L.diagonal(-1)
+        solution = solve_banded((1, 1), ab, b, overwrite_ab=True, check_finite=False)
+        residual = np.abs(L @ solution - b)
+        scale = np.abs(ab[1] * solution) + np.abs(b) + 1e-300
+        if not np.all(residual <= 1e-9 * scale):
+            return super()._solve_(L, x, b)
+        x[:] = solution
+        self._setConvergence(suite="scipy", code=0, iterations=1, residual=float(np.max(residual)))
+        return x
 
 
 class _Surfaces:
@@ -273,10 +312,9 @@ class BatchSolver:
         # The implicit surface sink G (T - T_bath) is folded into the transient term:
         # A (T - T_old) + G (T - T_bath) = (A + G) (T - (A T_old + G T_bath) / (A + G)).
         self.equation = fp.TransientTerm(coeff=self.transient) == fp.DiffusionTerm(coeff=self.conductance)
-        # A direct solve every step: with FiPy's default criteria the residual is scaled by the
-        # whole batch, so a nearly settled section in a large batch could be skipped. "initial"
-        # with a tiny tolerance forces at least one LU solve, which is exact block by block.
-        self.linear_solver = LinearLUSolver(tolerance=1e-12, criterion="initial")
+        # A direct solve every step (a section's answer must not depend on the batch's residual
+        # norms); "initial" with a tiny tolerance applies to the general LU fallback.
+        self.linear_solver = _TridiagonalSolver(tolerance=1e-12, criterion="initial")
         # Distance between neighbouring cell centres at each inner face.
         j = self.inner_faces
         self.centre_distance = 0.5 * (self.dx[j - 1] + self.dx[j])
