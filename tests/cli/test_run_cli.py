@@ -47,7 +47,7 @@ def test_malformed_case_gets_one_line_and_status_2(tmp_path):
     bad = tmp_path / "bad.toml"
     bad.write_text('[steel]\nc = 0.4\naustenitize_c = 850\n[part]\nshape = "bar"\ndiameter_mm = -3\n[quench]\nhtc_w_m2k = 1000\n')
     out = tmp_path / "never"
-    r = subprocess.run([sys.executable, "-m", "quenchwise.cli", "run", str(bad), "--out", str(out)],
+    r = subprocess.run([sys.executable, "-m", "quenchwise", "run", str(bad), "--out", str(out)],
                        capture_output=True, text=True)
     assert r.returncode == 2
     assert r.stderr.strip().count("\n") == 0 and "part.diameter_mm = -3" in r.stderr

@@ -138,7 +138,7 @@ def test_malformed_files_through_the_command_line(tmp_path, name):
     path = tmp_path / f"{name}.toml"
     path.write_bytes(text if isinstance(text, bytes) else text.encode("utf-8"))
     out = tmp_path / "out"
-    r = subprocess.run([sys.executable, "-m", "quenchwise.cli", "run", str(path), "--out", str(out)],
+    r = subprocess.run([sys.executable, "-m", "quenchwise", "run", str(path), "--out", str(out)],
                        capture_output=True, text=True, timeout=60)
     assert r.returncode == 2, r.stderr
     assert len(r.stderr.strip().splitlines()) == 1 and "Traceback" not in r.stderr
@@ -146,6 +146,6 @@ def test_malformed_files_through_the_command_line(tmp_path, name):
 
 
 def test_missing_case_file_through_the_command_line(tmp_path):
-    r = subprocess.run([sys.executable, "-m", "quenchwise.cli", "run", str(tmp_path / "nope.toml"), "--out",
+    r = subprocess.run([sys.executable, "-m", "quenchwise", "run", str(tmp_path / "nope.toml"), "--out",
                         str(tmp_path / "o")], capture_output=True, text=True, timeout=60)
     assert r.returncode == 2 and "nope.toml" in r.stderr and len(r.stderr.strip().splitlines()) == 1

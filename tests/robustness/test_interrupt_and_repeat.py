@@ -21,7 +21,7 @@ def test_signal_stops_cleanly_and_keeps_earlier_results(tmp_path, sig, status):
     out.mkdir()
     (out / "result.h5").write_bytes(b"earlier result")
     proc = subprocess.Popen(
-        [sys.executable, "-m", "quenchwise.cli", "run", str(slow), "--out", str(out), "--overwrite"],
+        [sys.executable, "-m", "quenchwise", "run", str(slow), "--out", str(out), "--overwrite"],
         stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
     time.sleep(4.0)    # imports done, well inside the quench (the case takes longer than this)
     proc.send_signal(sig)
