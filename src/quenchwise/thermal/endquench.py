@@ -1,0 +1,451 @@
+"""The end-quench (Jominy) specimen: FiPy heat conduction in (r, z), batched like BatchSolver.
+
+Specimen (ASTM A255 / ISO 642, memory): a round bar 25 mm (1 in) in diameter and 100 mm (4 in)
+long, austenitized, then sprayed on one end by a water jet while the rest of it stands in air.
+The bar is axisymmetric, so the field is solved on a ``fipy.CylindricalGrid2D`` (r, z): cell
+volumes and face areas carry the radius, the axis needs no condition. ``radial_cells = 1`` lumps
+the cross-section into one cell per slice, which is the classic 1-D axial (fin) model of the bar:
+conduction along z with the side loss of each slice; the same code serves both, so they can be
+compared with everything else equal.
+
+Boundaries: on the quenched end face the jet's h(T_surface); on the side and the far end, air
+(convection plus radiation, any Quenchant). Every surface enters as an implicit source on its
+cell: the film in series with the half cell, h_eff = 1 / (1/h + d/k), d the distance from the
+cell centre to the face; h is evaluated at the estimated surface temperature (one fixed-point
+pass) and lagged by one step, as in solver.BatchSolver.
+
+Batching: several specimens are laid one above the other on one mesh and cut apart by zero
+conductance on the faces between them; each has its own initial temperature, surface media,
+properties and time step (its transient coefficient carries 1/dt of that specimen, FiPy is asked
+for a unit step), so a specimen's answer does not depend on what else is in the batch. A specimen
+whose hottest cell is below end_c is frozen (identity rows).
+
+Time discretization, latent heat and step control are those of solver.BatchSolver (see run()):
+variable-step BDF2 on the sensible enthalpy, started with implicit Euler; after each conduction
+solve the stepper advances the phase state and the latent heat it returns [J/kg] is put back into
+the same step by temperature recovery through the enthalpy of the new phase mixture; the energy
+balance is exact; the next step follows from the largest temperature change and the largest
+fraction change per step. This module does not import the kinetics package: it drives any object
+with ``advance(t_old, t_new, dt) -> (latent J/kg, largest fraction change)`` and ``fractions()``.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Callable
+
+import fipy as fp
+import numpy as np
+from fipy.solvers.scipy import LinearLUSolver
+from scipy.optimize import brentq
+
+from .properties import DENSITY_KG_M3, PropertyTables, group_weights
+from .quenchants import Quenchant
+from .solver import SolverError
+
+#: ASTM A255 reading depth: hardness is read on two flats ground 0.015 in (0.38 mm) deep along
+#: the bar (memory); ISO 642 asks for 0.4-0.5 mm (memory). Readings are taken 0.4 mm below the side.
+READING_DEPTH_M = 0.4e-3
+#: 1/16 inch, the standard reading step along the bar [m].
+SIXTEENTH_M = 0.0254 / 16.0
+
+#: Water jet on the quenched end: a constant h [W/(m2 K)]. The jet (12.7 mm orifice, 63.5 mm free
+#: height, water 5-30 C; ASTM A255 / ISO 642, memory) keeps the end face wetted, so no long vapour
+#: stage is modelled. The value is the constant h that best reproduces the cooling rates at 700 C
+#: printed on published end-quench charts (about 170 / 70 / 31 / 18 / 9 / 5.6 C/s at 2 / 4 / 6 / 8 /
+#: 12 / 16 sixteenths; e.g. the cooling-rate scale of the hardenability charts in W.D. Callister,
+#: Materials Science and Engineering: An Introduction, Wiley, memory): with the kinetics on, 3e4
+#: gives those rates within about +/-25 % from 2/16 to 16/16 in, where 1e4 gives 30-40 % too little
+#: at 3-6/16 and 1e5 20-75 % too much (tests/validation/test_jominy.py). It is of the order of
+#: impinging-jet boiling coefficients (memory). Fitted on cooling rates only, never on hardness.
+JET_HTC_W_M2K = 3.0e4
+#: Still air on the side and the far end: natural convection (memory: about 10-15 W/(m2 K) for a
+#: hot vertical cylinder of this size) plus radiation of oxidized steel, emissivity about 0.8 (memory).
+AIR_CONVECTION_W_M2K = 12.0
+AIR_EMISSIVITY = 0.8
+
+
+def end_quench_jet(water_c: float = 20.0, htc_w_m2k: float = JET_HTC_W_M2K) -> Quenchant:
+    """The water jet on the quenched end (see JET_HTC_W_M2K)."""
+    return Quenchant("end-quench water jet", float(water_c), np.array([0.0, 2000.0]),
+                     np.array([htc_w_m2k, htc_w_m2k]), kind="water jet",
+                     source="constant h matched to published end-quench cooling rates (memory)")
+
+
+def still_air(ambient_c: float = 20.0) -> Quenchant:
+    """Still air: natural convection plus radiation (linearized, Quenchant.emissivity).
+
+    >>> round(float(still_air().htc(700.0)), 1)
+    71.3
+    """
+    return Quenchant("still air", float(ambient_c), np.array([0.0, 2000.0]),
+                     np.array([AIR_CONVECTION_W_M2K, AIR_CONVECTION_W_M2K]), kind="gas",
+                     emissivity=AIR_EMISSIVITY, source="natural convection and radiation (memory)")
+
+
+@dataclass(frozen=True)
+class EndQuenchSettings:
+    """Mesh and step control. radial_cells = 1 is the 1-D axial model (cross-section lumped)."""
+
+    radial_cells: int = 6
+    axial_cells: int = 48
+    first_axial_m: float = 0.25e-3      # first cell at the quenched end; geometric growth to the far end
+    radial_growth: float = 1.2          # cell width ratio from the side towards the axis
+    max_temperature_step_k: float = 12.0
+    max_fraction_step: float = 0.05
+    first_step_s: float = 0.002
+    max_step_growth: float = 1.5
+    max_steps: int = 20000
+    max_time_s: float = 3.0e4
+
+
+@dataclass(frozen=True)
+class EndQuenchBar:
+    """One specimen: its geometry, start and end temperatures, jet and air, optional constant
+    property overrides (verification runs)."""
+
+    name: str
+    initial_c: float
+    jet: Quenchant
+    air: Quenchant | None
+    end_c: float = 100.0
+    diameter_m: float = 0.025
+    length_m: float = 0.100
+    conductivity_w_mk: float | None = None
+    density_kg_m3: float | None = None
+    specific_heat_j_kgk: float | None = None
+
+
+@dataclass
+class EndQuenchHistory:
+    """Cooling history of one specimen on its (r, z) cells (r fastest in the flat cell order)."""
+
+    name: str
+    r_m: np.ndarray                 # (nr,) cell-centre radii
+    z_m: np.ndarray                 # (nz,) cell-centre distances from the quenched end
+    dr_m: np.ndarray
+    dz_m: np.ndarray
+    time_s: np.ndarray
+    temperature_c: np.ndarray       # (n_t, nz * nr)
+    heat_out_j: float = 0.0         # energy through all surfaces [J per radian]
+    latent_j: float = 0.0           # latent heat released [J per radian]
+    steps: int = 0
+    extra: dict = field(default_factory=dict)
+
+    @property
+    def shape(self) -> tuple[int, int]:
+        return self.z_m.size, self.r_m.size
+
+    def field(self, values: np.ndarray) -> np.ndarray:
+        """A flat per-cell array of this specimen as (nz, nr)."""
+        return np.asarray(values).reshape(self.shape)
+
+    def along_bar(self, values: np.ndarray, distance_m, depth_m: float = READING_DEPTH_M) -> np.ndarray:
+        """Values read at the given distances from the quenched end, depth_m below the side
+        (bilinear in the cell centres, held constant beyond the first and last centres)."""
+        grid = self.field(values)
+        radius = self.r_m[-1] + 0.5 * self.dr_m[-1] - depth_m
+        if self.r_m.size > 1:
+            column = np.array([np.interp(radius, self.r_m, row) for row in grid])
+        else:
+            column = grid[:, 0]
+        return np.interp(np.asarray(distance_m, dtype=float), self.z_m, column)
+
+
+def graded_widths(total_m: float, cells: int, first_m: float) -> np.ndarray:
+    """Cell widths growing geometrically from first_m so that they sum to total_m.
+
+    >>> w = graded_widths(0.1, 40, 0.0005)
+    >>> round(float(w.sum()), 12), round(float(w[0]), 6), bool(w[-1] > w[0])
+    (0.1, 0.0005, True)
+    """
+    if cells * first_m >= total_m:
+        return np.full(cells, total_m / cells)
+    g = brentq(lambda q: first_m * (q ** cells - 1.0) / (q - 1.0) - total_m, 1.0 + 1e-9, 10.0)
+    w = first_m * g ** np.arange(cells)
+    return w * (total_m / w.sum())
+
+
+class EndQuenchSolver:
+    """Solve a batch of end-quench specimens in one FiPy system (see module docstring)."""
+
+    def __init__(self, bars: list[EndQuenchBar], settings: EndQuenchSettings = EndQuenchSettings()):
+        if not bars:
+            raise ValueError("a batch needs at least one specimen")
+        d0, l0 = bars[0].diameter_m, bars[0].length_m
+        if any(b.diameter_m != d0 or b.length_m != l0 for b in bars):
+            raise ValueError("all specimens of a batch share one geometry")
+        self.bars, self.settings = list(bars), settings
+        s = settings
+        nr, nz, nb = s.radial_cells, s.axial_cells, len(bars)
+        self.nr, self.nz, self.nb = nr, nz, nb
+        radius = d0 / 2.0
+        raw = s.radial_growth ** np.arange(nr)[::-1]
+        self.dr = raw * (radius / raw.sum())
+        self.dz = graded_widths(l0, nz, s.first_axial_m)
+        r_faces = np.concatenate([[0.0], np.cumsum(self.dr)])
+        r_faces[-1] = radius
+        self.r_c = 0.5 * (r_faces[:-1] + r_faces[1:])
+        z_faces = np.concatenate([[0.0], np.cumsum(self.dz)])
+        self.z_c = 0.5 * (z_faces[:-1] + z_faces[1:])
+        self.mesh = fp.CylindricalGrid2D(dr=self.dr, dz=np.tile(self.dz, nb))
+        n = nr * nz * nb
+        self.n_cells, self.cells_per_bar = n, nr * nz
+        self.bar_of_cell = np.repeat(np.arange(nb), nr * nz)
+        self.starts = np.arange(nb) * nr * nz
+        # Geometry per cell (per radian): volume r dr dz; flat order r fastest, then z.
+        dr_cell = np.tile(self.dr, nz * nb)
+        dz_cell = np.repeat(np.tile(self.dz, nb), nr)
+        r_cell = np.tile(self.r_c, nz * nb)
+        self.volume = r_cell * dr_cell * dz_cell
+        self.dz_cell, self.dr_cell = dz_cell, dr_cell
+        cell = np.arange(n).reshape(nb * nz, nr)
+        # Interior faces with conduction: z-faces between slices of one bar, r-faces between rings.
+        lower = cell[:-1, :].ravel()
+        upper = cell[1:, :].ravel()
+        same_bar = self.bar_of_cell[lower] == self.bar_of_cell[upper]
+        self.zf_a, self.zf_b = lower[same_bar], upper[same_bar]
+        self.zf_area = r_cell[self.zf_a] * dr_cell[self.zf_a]
+        # FiPy face ids: z-normal faces first (row j = 0..nb*nz, nr per row), then r-normal faces.
+        rows = np.arange(nb * nz + 1)
+        zface_id = (rows[:, None] * nr + np.arange(nr)[None, :])
+        self.zf_id = zface_id[1:-1, :].ravel()[same_bar]
+        n_zfaces = nr * (nb * nz + 1)
+        if nr > 1:
+            inner = cell[:, :-1].ravel()
+            outer = cell[:, 1:].ravel()
+            self.rf_a, self.rf_b = inner, outer
+            j = np.repeat(np.arange(nb * nz), nr - 1)
+            i = np.tile(np.arange(1, nr), nb * nz)
+            self.rf_id = n_zfaces + j * (nr + 1) + i
+            self.rf_area = r_faces[i] * dz_cell[inner]
+        else:
+            self.rf_a = self.rf_b = self.rf_id = np.zeros(0, dtype=int)
+            self.rf_area = np.zeros(0)
+        # Boundary faces: quenched end (bottom row of each bar), far end (top row), side (outer ring).
+        self.end_cells = np.concatenate([cell[b * nz, :] for b in range(nb)])
+        self.top_cells = np.concatenate([cell[(b + 1) * nz - 1, :] for b in range(nb)])
+        self.side_cells = cell[:, -1].copy()
+        self.end_area = r_cell[self.end_cells] * dr_cell[self.end_cells]
+        self.side_area = radius * dz_cell[self.side_cells]
+
+        def per_cell(attr, default):
+            vals = [getattr(b, attr) for b in self.bars]
+            return np.repeat(np.array([default if v is None else v for v in vals], dtype=float), nr * nz)
+
+        self.density = per_cell("density_kg_m3", DENSITY_KG_M3)
+        self.k_override = per_cell("conductivity_w_mk", np.nan)
+        self.cp_override = per_cell("specific_heat_j_kgk", np.nan)
+        self.initial = per_cell("initial_c", np.nan)
+        self.end_c = np.array([b.end_c for b in self.bars], dtype=float)
+
+        self.T = fp.CellVariable(mesh=self.mesh, value=self.initial.copy(), hasOld=True)
+        self.transient = fp.CellVariable(mesh=self.mesh, value=1.0)
+        self.conductance = fp.FaceVariable(mesh=self.mesh, value=0.0)
+        self.sink = fp.CellVariable(mesh=self.mesh, value=0.0)
+        self.source = fp.CellVariable(mesh=self.mesh, value=0.0)
+        self.equation = (fp.TransientTerm(coeff=self.transient)
+                         == fp.DiffusionTerm(coeff=self.conductance) + fp.ImplicitSourceTerm(coeff=self.sink)
+                         + self.source)
+        # Direct solve every step (criterion "initial": see solver.BatchSolver).
+        self.linear_solver = LinearLUSolver(tolerance=1e-12, criterion="initial")
+        self.tables = PropertyTables()
+        self._surface_table()
+
+    # -- pieces of one step -------------------------------------------------------------------
+    def _properties(self, temperature, mixture):
+        """Conductivity, specific heat and sensible enthalpy per cell (tables or constant overrides)."""
+        k, cp, h = mixture.evaluate(temperature)
+        k = np.where(np.isnan(self.k_override), k, self.k_override)
+        fixed = ~np.isnan(self.cp_override)
+        cp = np.where(fixed, self.cp_override, cp)
+        h = np.where(fixed, self.cp_override * temperature, h)
+        return k, cp, h
+
+    def _temperature_for(self, enthalpy, mixture, guess):
+        t = mixture.temperature_for_enthalpy(enthalpy, guess)
+        fixed = ~np.isnan(self.cp_override)
+        return np.where(fixed, enthalpy / np.where(fixed, self.cp_override, 1.0), t)
+
+    def _surface_table(self):
+        """Every surface face once: its cell, area, centre-to-face distance, bar and quenchant."""
+        cells, area, half, bar, media = [], [], [], [], []
+        nr, nz = self.nr, self.nz
+        for b, spec in enumerate(self.bars):
+            groups = [(self.end_cells[b * nr:(b + 1) * nr], self.end_area[b * nr:(b + 1) * nr], "z", spec.jet)]
+            if spec.air is not None:
+                groups.append((self.top_cells[b * nr:(b + 1) * nr], self.end_area[b * nr:(b + 1) * nr], "z", spec.air))
+                groups.append((self.side_cells[b * nz:(b + 1) * nz], self.side_area[b * nz:(b + 1) * nz], "r", spec.air))
+            for c, a, axis, q in groups:
+                cells.append(c)
+                area.append(a)
+                half.append(0.5 * (self.dz_cell[c] if axis == "z" else self.dr_cell[c]))
+                bar.append(np.full(c.size, b))
+                media.append((q, c.size))
+        self.sf_cell = np.concatenate(cells)
+        self.sf_area = np.concatenate(area)
+        self.sf_half = np.concatenate(half)
+        self.sf_bar = np.concatenate(bar)
+        self.sf_groups = []
+        at = 0
+        for q, n in media:
+            self.sf_groups.append((slice(at, at + n), q))
+            at += n
+        self.sf_bath = np.concatenate([np.full(n, q.bath_c) for q, n in media])
+
+    def _surfaces(self, temperature, k):
+        """Film in series with the half cell, h at the estimated surface temperature (one
+        fixed-point pass): coefficient x area of every surface face."""
+        g = k[self.sf_cell] / self.sf_half
+        t_cell = temperature[self.sf_cell]
+        out = np.empty(self.sf_cell.size)
+        for sl, q in self.sf_groups:
+            h = q.htc(t_cell[sl])
+            t_surf = (g[sl] * t_cell[sl] + h * q.bath_c) / (g[sl] + h)
+            h = np.maximum(q.htc(t_surf), 1e-12)
+            out[sl] = 1.0 / (1.0 / h + 1.0 / g[sl])
+        return out * self.sf_area
+
+    def _face_conductance(self, k, active_cell):
+        values = np.zeros(self.mesh.numberOfFaces)
+        a, b = self.zf_a, self.zf_b
+        kz = (0.5 * (self.dz_cell[a] + self.dz_cell[b])) / (0.5 * self.dz_cell[a] / k[a] + 0.5 * self.dz_cell[b] / k[b])
+        values[self.zf_id] = np.where(active_cell[a], kz, 0.0)
+        if self.rf_a.size:
+            a, b = self.rf_a, self.rf_b
+            kr = (0.5 * (self.dr_cell[a] + self.dr_cell[b])) / (0.5 * self.dr_cell[a] / k[a] + 0.5 * self.dr_cell[b] / k[b])
+            values[self.rf_id] = np.where(active_cell[a], kr, 0.0)
+        return values
+
+    def run(self, stepper=None, progress: Callable[[float], None] | None = None) -> list[EndQuenchHistory]:
+        """Integrate every specimen until its hottest cell is below its end temperature.
+
+        The step is that of solver.BatchSolver, energy-exact: BDF2 on the sensible enthalpy
+        (the history term is the previous step's conduction enthalpy), coefficients at the
+        temperatures extrapolated to the end of the step (cp as the enthalpy secant), conduction
+        enthalpy and latent heat turned into temperature through the exact enthalpy of the phase
+        mixture, and the heat through each surface face integrated by the same BDF2 rule; so
+        heat_out_j = drop of sensible enthalpy + latent_j to round-off.
+        """
+        s = self.settings
+        nb, n = self.nb, self.n_cells
+        bar_of = self.bar_of_cell
+        temperature = self.initial.copy()
+        fractions = stepper.fractions() if stepper is not None else {"austenite": np.ones(n)}
+        mixture = self.tables.mixture(group_weights(fractions, n))
+        k, cp, enthalpy = self._properties(temperature, mixture)
+        dt_bar = np.full(nb, s.first_step_s)
+        t_bar = np.zeros(nb)
+        active = np.ones(nb, dtype=bool)
+        steps = np.zeros(nb, dtype=int)
+        times = [[0.0] for _ in range(nb)]
+        temps = [[temperature[a:a + self.cells_per_bar].copy()] for a in self.starts]
+        heat_face = np.zeros(self.sf_cell.size)
+        q_prev = np.zeros(self.sf_cell.size)
+        latent_total = np.zeros(nb)
+        start_span = np.maximum(self.initial[self.starts] - self.end_c, 1e-9)
+        e_prev = np.zeros(n)
+        dt_prev = np.zeros(nb)
+        last_change = np.zeros(n)
+        mass = self.density * self.volume
+        while active.any():
+            active_cell = active[bar_of]
+            dt_cell = np.where(active_cell, dt_bar[bar_of], 0.0)
+            w_bar = np.where(dt_prev > 0, dt_bar / np.where(dt_prev > 0, dt_prev, 1.0), 0.0)
+            a0_bar = (1.0 + 2.0 * w_bar) / (1.0 + w_bar)
+            b_bar = w_bar * w_bar / (1.0 + w_bar)
+            a0, b = a0_bar[bar_of], b_bar[bar_of]
+            extrapolated = temperature + w_bar[bar_of] * last_change
+            k, _, h_end = self._properties(extrapolated, mixture)
+            rise = extrapolated - temperature
+            moved = np.abs(rise) > 1e-6
+            cp_step = np.where(moved, (h_end - enthalpy) / np.where(moved, rise, 1.0), cp)
+            rho_cp = self.density * cp_step
+            self.transient.setValue(np.where(active_cell, a0 * rho_cp / np.where(active_cell, dt_cell, 1.0), rho_cp))
+            old_eff = np.where(active_cell, temperature + b * e_prev / (a0 * cp_step), temperature)
+            self.conductance.setValue(self._face_conductance(k, active_cell))
+            g = np.where(active[self.sf_bar], self._surfaces(extrapolated, k), 0.0)
+            vol = self.volume[self.sf_cell]
+            self.sink.setValue(-np.bincount(self.sf_cell, g / vol, minlength=n))
+            self.source.setValue(np.bincount(self.sf_cell, g * self.sf_bath / vol, minlength=n))
+            self.T.setValue(old_eff)
+            self.T.updateOld()
+            self.equation.solve(var=self.T, dt=1.0, solver=self.linear_solver)
+            solved = np.where(active_cell, np.array(self.T.value, dtype=float), temperature)
+            # Heat through each surface face, BDF2-integrated like the enthalpy.
+            face_bar = self.sf_bar
+            q = (dt_bar[face_bar] * g * (solved[self.sf_cell] - self.sf_bath) + b_bar[face_bar] * q_prev) / a0_bar[face_bar]
+            q = np.where(active[face_bar], q, 0.0)
+            q_prev = np.where(active[face_bar], q, q_prev)
+            heat_face += q
+            e_now = np.where(active_cell, cp_step * (solved - temperature), 0.0)
+            new = np.where(active_cell, self._temperature_for(enthalpy + e_now, mixture, solved), temperature)
+            change = np.zeros(n)
+            if stepper is not None:
+                latent, change = stepper.advance(temperature, new, dt_cell)
+                latent = np.where(active_cell, latent, 0.0)
+                change = np.where(active_cell, change, 0.0)
+                latent_total += np.bincount(bar_of, latent * mass, minlength=nb)
+                fractions = stepper.fractions()
+                self.tables.mixture(group_weights(fractions, n), out=mixture)
+                if np.any(latent != 0.0):     # temperature recovery at the new phase mixture
+                    _, cp_new, h_new = self._properties(new, mixture)
+                    guess = new + latent / cp_new
+                    new = np.where(latent != 0.0, self._temperature_for(h_new + latent, mixture, guess), new)
+            if not np.all(np.isfinite(new)):
+                bad = int(bar_of[np.flatnonzero(~np.isfinite(new))[0]])
+                raise SolverError(f"specimen {self.bars[bad].name!r}: temperature not finite at t = {t_bar[bad]:.3g} s")
+            d_temp = np.abs(new - temperature)
+            last_change = np.where(active_cell, new - temperature, last_change)
+            e_prev = np.where(active_cell, e_now, e_prev)
+            dt_prev = np.where(active, dt_bar, dt_prev)
+            temperature = new
+            k, cp, enthalpy = self._properties(temperature, mixture)
+            t_bar = np.where(active, t_bar + dt_bar, t_bar)
+            steps += active
+            hottest = np.maximum.reduceat(temperature, self.starts)
+            for bb in np.flatnonzero(active):
+                a = self.starts[bb]
+                times[bb].append(t_bar[bb])
+                temps[bb].append(temperature[a:a + self.cells_per_bar].copy())
+            d_t = np.maximum.reduceat(d_temp, self.starts)
+            d_f = np.maximum.reduceat(change, self.starts)
+            with np.errstate(divide="ignore"):
+                factor = np.minimum(s.max_temperature_step_k / d_t, s.max_fraction_step / d_f)
+            factor = np.clip(0.9 * factor, 0.3, s.max_step_growth)
+            dt_bar = np.where(active, dt_bar * factor, dt_bar)
+            finished = active & (hottest < self.end_c)
+            stuck = active & ~finished & ((steps >= s.max_steps) | (t_bar >= s.max_time_s))
+            if stuck.any():
+                bb = int(np.flatnonzero(stuck)[0])
+                raise SolverError(
+                    f"specimen {self.bars[bb].name!r}: not below {self.end_c[bb]:g} C after {steps[bb]} steps, "
+                    f"t = {t_bar[bb]:.4g} s (hottest cell {hottest[bb]:.1f} C)")
+            active &= ~finished
+            if progress is not None:
+                done = np.clip((self.initial[self.starts] - hottest) / start_span, 0.0, 1.0)
+                progress(float(np.mean(np.where(active, done, 1.0))))
+
+        heat_out = np.bincount(self.sf_bar, heat_face, minlength=nb)
+        return [
+            EndQuenchHistory(name=bar.name, r_m=self.r_c.copy(), z_m=self.z_c.copy(), dr_m=self.dr.copy(),
+                             dz_m=self.dz.copy(), time_s=np.array(times[b]), temperature_c=np.array(temps[b]),
+                             heat_out_j=float(heat_out[b]), latent_j=float(latent_total[b]), steps=int(steps[b]))
+            for b, bar in enumerate(self.bars)
+        ]
+
+
+def rate_at(history: EndQuenchHistory, temperature_c: float = 700.0) -> np.ndarray:
+    """Cooling rate of every cell as it first passed temperature_c [K/s], from the stored history
+    (runs without a stepper); NaN where the cell never crossed it."""
+    t, temp = history.time_s, history.temperature_c
+    above = temp[:-1] > temperature_c
+    below = temp[1:] <= temperature_c
+    cross = above & below
+    out = np.full(temp.shape[1], math.nan)
+    has = cross.any(axis=0)
+    i = np.argmax(cross, axis=0)
+    j = np.flatnonzero(has)
+    out[j] = (temp[i[j], j] - temp[i[j] + 1, j]) / (t[i[j] + 1] - t[i[j]])
+    return out
