@@ -452,6 +452,69 @@ def sheet(
                          "files": [str(f) for f in files]}, "\n".join(lines))
 
 
+def _jominy_text(summary: dict, files: list[Path]) -> str:
+    s = summary
+    steel = s["steel"]
+    chem = ", ".join(f"{k.capitalize()} {v:g}" for k, v in steel["composition_wt_pct"].items() if v > 0)
+    di = s["di"]
+    lines = [f"quenchwise {__version__}  |  {s['title'] or 'end-quench test'}",
+             f"steel   {steel['grade'] or 'custom'} ({chem} wt%), grain size {steel['grain_size']:g}, "
+             f"austenitized at {steel['austenitize_c']:g} C",
+             f"test    {s['test']['specimen']}; {s['test']['model']} model, jet h {s['test']['jet_htc_w_m2k']:g} W/m2K; "
+             f"{s['test']['time_s']:g} s, {s['test']['steps']} steps",
+             f"DI      ASTM A255 {di['a255']['in']:.2f} in ({di['a255']['mm']:.0f} mm)"
+             + (f"; simulated {di['physics']['in']:.2f} in ({di['physics']['mm']:.0f} mm), ratio "
+                f"{di['physics_over_a255']:.2f}" if di.get("physics") else ""),
+             "",
+             f"{'1/16 in':>8}{'mm':>8}{'HRC':>7}{'HV':>7}{'C/s at 700 C':>14}{'martensite %':>14}"]
+    band = {round(r["distance_mm"], 2): r for r in s.get("band", {}).get("rows", [])}
+    for r in s["readings"]:
+        if r["sixteenths"] <= 16 or r["sixteenths"] % 4 == 0:
+            lines.append(f"{r['sixteenths']:>8}{r['distance_mm']:>8.1f}{_fmt(r['hrc']):>7}{_fmt(r['hv'], '{:.0f}'):>7}"
+                         f"{_fmt(r['cooling_rate_700_c_s'], '{:.3g}'):>14}{_fmt(r['martensite_pct']):>14}")
+    if "band" in s:
+        b = s["band"]
+        lines.append(f"band    {b['inside']} of {b['of']} band rows inside: "
+                     + ", ".join(f"{r['distance_mm']:g} mm {_fmt(r['hrc'])} HRC in [{_fmt(r['min_hrc'], '{:g}')}, "
+                                 f"{_fmt(r['max_hrc'], '{:g}')}]{'' if r['inside'] else ' OUT'}" for r in b["rows"]))
+    del band
+    for w in s["warnings"]:
+        lines.append(f"warning {w}")
+    if files:
+        lines.append("wrote   " + ", ".join(str(f) for f in files))
+    return "\n".join(lines)
+
+
+@app.command()
+def jominy(
+    case_file: Path = typer.Argument(..., help="Case file (TOML); its [steel] is tested, [part] and [quench] are not needed."),
+    out: Path = typer.Option(..., "--out", "-o", help="Folder for jominy.csv and the figure."),
+    band: Optional[Path] = typer.Option(None, "--band", help="Band CSV: distance_mm or distance_sixteenths, min_hrc, max_hrc."),
+    rz: bool = typer.Option(False, "--rz", help="Solve the specimen in (r, z) instead of the 1-D axial model."),
+    physics_di: bool = typer.Option(True, "--physics-di/--no-physics-di",
+                                    help="Also find the DI by simulating bars (a few seconds more)."),
+    json_out: bool = typer.Option(False, "--json", help="Print the summary as one JSON object, nothing else."),
+    overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+) -> None:
+    """Simulate the end-quench (Jominy) test of the case's steel, with its ideal critical diameter."""
+    with _guard():
+        from .plots import jominy_figure
+        from .workflows.jominy import DEFAULT_SETTINGS, RZ_SETTINGS, load_steel_case, read_band
+        from .workflows.jominy import jominy as run_jominy
+
+        _check_out_dir(out, overwrite, markers=("jominy.csv",))
+        case = load_steel_case(case_file)
+        rows = read_band(band) if band is not None else None
+        _activity(f"solving the end-quench test of {case_file}")
+        with _Progress(not json_out, "end-quench test") as progress:
+            result = run_jominy([case], RZ_SETTINGS if rz else DEFAULT_SETTINGS, physics_di, progress)[0]
+        with _staged(out) as (staging, files):
+            (staging / "jominy.csv").write_text(result.csv_text(), "utf-8")
+            jominy_figure(result, staging, rows)
+        summary = result.summary(rows)
+        _emit(json_out, {**summary, "files": [str(f) for f in files]}, _jominy_text(summary, files))
+
+
 # -- diagram: TTT / CCT of the case's steel ------------------------------------------------------
 DIAGRAM_KINDS = ("ttt", "cct")
 

@@ -177,6 +177,57 @@ def sizing_figure(answer, out_dir: Path) -> list[Path]:
     return _save(fig, out_dir, "sizing")
 
 
+# -- end-quench test --------------------------------------------------------------------------
+BAND_FILL = "#e9d9b8"
+BAND_EDGE = "#b08a3e"
+
+
+def jominy_figure(result, out_dir: Path, band=None, stem: str = "jominy") -> list[Path]:
+    """Hardness along the end-quench bar (HRC; points below HRC 20 marked at the axis floor and
+    given in HV / HRB in jominy.csv), the cooling rate at 700 C on a log right axis, an optional
+    band (rows with distance_mm, min_hrc, max_hrc) as a shaded corridor, and the two DI values."""
+    d = result.distance_mm
+    hrc = result.hrc
+    fig, ax = plt.subplots(figsize=(7.2, 4.6))
+    fig.subplots_adjust(bottom=0.2, right=0.84, top=0.84)
+    if band:
+        bd = np.array([r.distance_mm for r in band])
+        lo = np.array([np.nan if r.min_hrc is None else r.min_hrc for r in band])
+        hi = np.array([np.nan if r.max_hrc is None else r.max_hrc for r in band])
+        order = np.argsort(bd)
+        bd, lo, hi = bd[order], lo[order], hi[order]
+        floor = np.where(np.isnan(lo), 20.0, lo)
+        ceil = np.where(np.isnan(hi), 70.0, hi)
+        ax.fill_between(bd, floor, ceil, color=BAND_FILL, alpha=0.8, lw=0, label="band")
+        ax.plot(bd, lo, color=BAND_EDGE, lw=1.0, ls="--")
+        ax.plot(bd, hi, color=BAND_EDGE, lw=1.0, ls="--")
+    ok = np.isfinite(hrc)
+    ax.plot(d[ok], hrc[ok], color=INK, lw=2.0, marker="o", ms=3.0, label="predicted HRC")
+    if (~ok).any():
+        ax.plot(d[~ok], np.full((~ok).sum(), 20.0), ls="none", marker="v", ms=4.0, mfc="white", mec=INK,
+                label="below HRC 20 (HV, HRB in jominy.csv)")
+    ax.set_xlim(0.0, float(d[-1]) + 1.0)
+    ax.set_ylim(18.0, 70.0)
+    ax.set_xlabel("distance from the quenched end [mm]")
+    ax.set_ylabel("Rockwell C (ASTM E140)", color=INK)
+    ax.grid(True, color="#e5e5e5", lw=0.6)
+    top = ax.secondary_xaxis("top", functions=(lambda x: x / 1.5875, lambda s: s * 1.5875))
+    top.set_xlabel("distance [1/16 in]", fontsize=8)
+    rate_ax = ax.twinx()
+    rate_ax.plot(d, result.cooling_rate_700_c_s, color=POINT_COLOURS[2], lw=1.0, ls="-.")
+    rate_ax.set_yscale("log")
+    rate_ax.set_ylabel("cooling rate at 700 C [C/s]", color=POINT_COLOURS[2])
+    di = f"DI: A255 {result.di_a255.inches:.2f} in"
+    if result.di_physics is not None:
+        di += f", simulated {result.di_physics.inches:.2f} in"
+    ax.legend(frameon=False, fontsize=7.5, loc="upper right")
+    steel = result.case.grade or "custom steel"
+    ax.set_title(f"{result.case.title or steel}: end-quench test ({steel}, {result.case.austenitize_c:g} C)\n{di}",
+                 fontsize=9.5, loc="left")
+    _footer(fig, SHORT_CAUTION)
+    return _save(fig, out_dir, stem)
+
+
 # -- TTT and CCT diagrams -----------------------------------------------------------------------
 #: Our own palette for the transformation products (documented in each figure's legend).
 PRODUCT_COLOURS = {"ferrite": "#3a7d44", "cementite": "#7b4b94", "pearlite": "#c98b12", "bainite": "#b23a48",
