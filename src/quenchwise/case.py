@@ -33,7 +33,7 @@ SECTIONS = {
     "requirement": {"min_hrc", "min_martensite_pct", "depth_mm"},
     "compare": {"media"},
 }
-MODELS = ("li1998", "kirkaldy1983", "none")
+MODELS = ("li1998", "kirkaldy1983", "li1998-a255", "none")
 MARTENSITE_LAWS = ("koistinen_marburger", "van_bohemen_sietsma")
 SHAPE_NAMES = ("plate", "bar", "tube", "sphere")
 #: Default end of the quench: the hottest point of the section below this [C].

@@ -10,12 +10,14 @@ A kinetics model is a small frozen dataclass with
 """
 
 from ..steel.critical import ACM_METHOD, AE_METHOD, MS_METHOD
+from .calibrated import Li1998A255
 from .kirkaldy1983 import Kirkaldy1983
 from .li1998 import Li1998
 from .martensite import koistinen_marburger, van_bohemen_sietsma_alpha
 from .transformation import PRODUCTS, HistoryRun, PhaseStepper, SteelNodes, follow_history
 
-MODELS = {"li1998": Li1998, "kirkaldy1983": Kirkaldy1983}
+MODELS = {"li1998": Li1998, "kirkaldy1983": Kirkaldy1983,
+          "li1998-a255": Li1998A255}  # calibrated variant, selectable (kinetics/calibrated.py)
 
 
 def critical_temperature_note(model: str) -> str:
@@ -30,5 +32,5 @@ def critical_temperature_note(model: str) -> str:
     return "; ".join(parts)
 
 
-__all__ = ["MODELS", "PRODUCTS", "HistoryRun", "Kirkaldy1983", "Li1998", "PhaseStepper", "SteelNodes",
+__all__ = ["MODELS", "PRODUCTS", "HistoryRun", "Kirkaldy1983", "Li1998", "Li1998A255", "PhaseStepper", "SteelNodes",
            "critical_temperature_note", "follow_history", "koistinen_marburger", "van_bohemen_sietsma_alpha"]
