@@ -179,6 +179,15 @@ def _summary_text(summary: dict, files: list[Path]) -> str:
         hv = "-" if p["hv"] is None else f"{p['hv']:.0f}"
         lines.append(f"{p['location']:<20}{p['depth_mm']:>9.2f}{hrc:>7}{hv:>7}{p['martensite_pct']:>14.1f}"
                      f"{p['bainite_pct']:>11.1f}{p['ferrite_pearlite_pct']:>14.1f}{p['retained_austenite_pct']:>13.1f}")
+    if "temper" in s:
+        t = s["temper"]
+        lines.append(f"temper  {t['hours']:g} h at {t['temperature_c']:g} C: " + ", ".join(
+            f"{p['location']} " + (f"{p['hrc_tempered']:.1f} HRC" if p.get("hrc_tempered") is not None
+                                   else f"{_fmt(p.get('hrb_tempered'))} HRB") + f" ({_fmt(p.get('hv_tempered'), '{:.0f}')} HV)"
+            for p in s["points"]) + f"  ({t['method']})")
+    if "di" in s:
+        lines.append(f"DI      {s['di']['a255']['in']:.2f} in ({s['di']['a255']['mm']:.0f} mm) from composition, "
+                     "ASTM A255; the simulated DI: quenchwise jominy")
     lines.append(f"models  kinetics {s['models']['kinetics']}, martensite {s['models']['martensite']}, "
                  f"hardness {s['models']['hardness']}")
     for w in s["warnings"]:

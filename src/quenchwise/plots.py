@@ -44,6 +44,12 @@ def hardness_figure(result, out_dir: Path) -> list[Path]:
     fig, ax = plt.subplots(figsize=(7.0, 4.4))
     fig.subplots_adjust(bottom=0.2, right=0.86)
     ax.plot(depth[order], result.hv[order], color=INK, lw=2.0, label="HV (as quenched)")
+    tempered = getattr(result, "hv_tempered", None)
+    if tempered is not None:
+        t = result.extra.get("temper", {})
+        ax.plot(depth[order], tempered[order], color=INK, lw=1.6, ls="--",
+                label=f"HV after {t.get('hours', 0):g} h at {t.get('temperature_c', 0):g} C")
+        ax.set_ylim(min(ax.get_ylim()[0], float(np.nanmin(tempered)) - 20.0), ax.get_ylim()[1])
     ax.set_xlabel("depth below quenched surface [mm]")
     ax.set_ylabel("Vickers hardness HV", color=INK)
     ax.grid(True, color="#e5e5e5", lw=0.6)
@@ -65,6 +71,8 @@ def hardness_figure(result, out_dir: Path) -> list[Path]:
         ax.axvline(d, color=colour, lw=0.8, ls=":")
         ax.annotate(label, (d, hv_hi), xytext=(2, -10), textcoords="offset points", fontsize=7, color=colour)
     ax.set_title(f"{result.case.title or 'case'}: hardness profile", fontsize=10, loc="left")
+    if tempered is not None:
+        ax.legend(frameon=False, fontsize=8, loc="center left")
     _footer(fig, SHORT_CAUTION)
     return _save(fig, out_dir, "hardness")
 

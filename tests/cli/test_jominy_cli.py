@@ -79,3 +79,24 @@ def test_run_json_reports_the_composition_di(cli, cases_dir, tmp_path):
     assert code == 0
     di = json.loads(stdout)["di"]
     assert set(di) == {"a255"} and di["a255"]["in"] > 0 and "A255" in di["a255"]["method"]
+
+
+def test_run_text_shows_the_temper_and_the_di(cli, tmp_path):
+    (tmp_path / "t.toml").write_text("""title = "4140 pin, oil, tempered (invented scenario)"
+[steel]
+grade = "4140"
+[part]
+shape = "bar"
+diameter_mm = 20
+[quench]
+medium = "oil_conventional_60c_still"
+end_c = 80
+[temper]
+temperature_c = 425
+hours = 2
+""")
+    code, stdout, stderr = cli("run", tmp_path / "t.toml", "--out", tmp_path / "o")
+    assert code == 0, stderr
+    assert "temper  2 h at 425 C: surface" in stdout and "ASTM A255" in stdout
+    header = (tmp_path / "o" / "profile.csv").read_text().splitlines()[0]
+    assert header.endswith("cooling_rate_700_c_s,hv_tempered,hrc_tempered")
