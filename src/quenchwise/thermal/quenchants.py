@@ -1,13 +1,46 @@
 """Quenchants: the surface heat-transfer coefficient as a function of surface temperature.
 
-Built-in curves are package data (quenchants/*.csv); a user curve is a CSV of surface
-temperature [C] and h [W/(m2 K)] with a header row. Metadata lines start with '#' and carry
-'key: value' pairs (name, kind, bath_c, agitation, flash_point_c, emissivity, source).
+Curve format (built-in and user curves alike): a CSV of surface temperature [C] and h [W/(m2 K)]
+with the header row `surface_c,htc_w_m2k`, preceded by optional metadata lines '# key: value'
+(name, description, kind, bath_c, agitation, flash_point_c, emissivity, source; other keys are
+kept as comments). h is interpolated linearly in the table and held constant beyond its ends;
+with emissivity > 0 the program adds radiation to the bath/surroundings temperature. A probe
+fit (thermal.probe) writes this same format, so `run` accepts it by path.
+
+Built-in library (package data, quenchants/*.csv; `quenchwise quenchants` lists them):
+water at 20, 40 and 70 C; brine (10 % NaCl) at 20 C; conventional and fast quench oils at 60 C;
+a hot (marquench) oil at 160 C; polymer (PAG-type) solutions of 10, 20 and 30 % at 40 C, each
+still, moderate and strong; still air and forced gas. Every liquid curve is an illustrative
+shape (invented), NOT measured data, and its source line says so: a vapour blanket (low h) at
+high surface temperature, a nucleate-boiling peak (water and brine near 350-450 C, polymers
+near 430-530 C, oils near 580-640 C), and convection near the bath. Five of them (still and
+strongly agitated water, still brine, still and well-agitated conventional oil) had their peak
+level set so that their equivalent Grossmann H (thermal.severity) falls in the ranges of the ASM
+Handbook quench severity table (memory); tests/validation/test_quench_severity.py checks them.
+The others follow from the same shapes by the rules below and were not tuned.
+
+Agitation: separate curves, not a factor. Agitation changes the shape, not only the level: it
+breaks the vapour blanket earlier (at a higher surface temperature), raises convection and the
+film stage much more than the boiling peak. One multiplier on h(T) cannot move the end of the
+vapour stage, and a measured probe curve (the thing users bring) is a whole curve per agitation
+anyway. Levels: "still" (no agitation), "moderate" (a well-stirred bath; the handbook table's
+"good agitation"), "strong" (forced circulation close to the part; the table's "strong").
+Rules used to make the illustrative curves of one family (invented, stated for transparency):
+moderate / strong multiply convection by 1.3 / 1.7 (water, polymer) or 1.5 / 2.2 (oil, brine),
+the film stage by 1.3 / 1.7 (water, polymer, brine) or 1.4 / 1.9 (oil), the peak by a family
+factor, and raise the end of the vapour stage by 15 / 30 K (water, polymer), 30 / 60 K (brine)
+or 60 / 120 K (oil). A hotter water bath ends the vapour stage 2 K lower per K and lowers the
+peak; more polymer lengthens the vapour stage (6 K lower per % concentration) and lowers the
+peak.
+
+Oils carry a flash point (illustrative values; use the data sheet of your oil): results warn
+when the bath comes within results.FLASH_MARGIN_K of it.
 """
 
 from __future__ import annotations
 
 import csv
+import difflib
 import io
 import math
 from dataclasses import dataclass, field, replace
@@ -24,6 +57,8 @@ from ..errors import InputError
 GROSSMANN_CONDUCTIVITY_W_MK = 25.0
 METRES_PER_INCH = 0.0254
 STEFAN_BOLTZMANN = 5.670374419e-8
+#: Largest h accepted in a curve [W/(m2 K)] (the same bound as [quench] htc_w_m2k).
+MAX_HTC_W_M2K = 1.0e6
 
 
 def htc_from_grossmann(severity_per_inch, conductivity_w_mk=GROSSMANN_CONDUCTIVITY_W_MK):
@@ -70,6 +105,7 @@ class Quenchant:
     emissivity: float = 0.0
     flash_point_c: float | None = None
     source: str = ""
+    description: str = ""
 
     def htc(self, surface_c):
         """h at the given surface temperatures [W/(m2 K)], table held constant beyond its ends."""
@@ -110,30 +146,79 @@ def _parse(text: str, origin: str, key: str) -> Quenchant:
     allowed = "a CSV with a header row and two columns: surface temperature (C), h (W/m2K)"
     if len(rows) < 3:
         raise InputError(key, origin, allowed + ", at least two data rows")
+    if _numbers(rows[0]):
+        raise InputError(key, origin, allowed + f"; the first row {rows[0]!r} is data, the header row "
+                         "(surface_c,htc_w_m2k) is missing")
     values = []
     for row in rows[1:]:
         try:
             t, h = (float(x) for x in row[:2])
         except (ValueError, TypeError):
             raise InputError(key, origin, allowed + f"; row {row!r} is not two numbers") from None
-        if not (math.isfinite(t) and math.isfinite(h)) or h < 0 or not -50 <= t <= 1400:
-            raise InputError(key, origin, allowed + f"; row {row!r} must have -50 <= T <= 1400 C and h >= 0")
+        if not (math.isfinite(t) and math.isfinite(h)) or not 0 <= h <= MAX_HTC_W_M2K or not -50 <= t <= 1400:
+            raise InputError(key, origin, allowed + f"; row {row!r} must have -50 <= T <= 1400 C and "
+                             f"0 <= h <= {MAX_HTC_W_M2K:g} W/m2K")
         values.append((t, h))
     arr = np.array(sorted(values))
     if np.any(np.diff(arr[:, 0]) <= 0):
         raise InputError(key, origin, allowed + "; surface temperatures must not repeat")
 
-    def num(name, default):
+    if np.max(arr[:, 1]) <= 0:
+        raise InputError(key, origin, allowed + "; h must be above zero somewhere")
+
+    def num(name, default, lo, hi):
+        if name not in meta:
+            return default
         try:
-            return float(meta[name]) if name in meta else default
+            v = float(meta[name])
         except ValueError:
-            raise InputError(f"{key} ({name})", meta[name], "a number") from None
+            v = math.nan
+        if not (math.isfinite(v) and lo <= v <= hi):
+            raise InputError(f"{key} (# {name})", meta[name], f"a number from {lo:g} to {hi:g}") from None
+        return v
 
     return Quenchant(
-        name=meta.get("name", Path(origin).stem), bath_c=num("bath_c", 20.0), surface_c=arr[:, 0],
+        name=meta.get("name", Path(origin).stem), bath_c=num("bath_c", 20.0, -20.0, 300.0), surface_c=arr[:, 0],
         htc_w_m2k=arr[:, 1], kind=meta.get("kind", "user"), agitation=meta.get("agitation", ""),
-        emissivity=num("emissivity", 0.0), flash_point_c=num("flash_point_c", None), source=meta.get("source", ""),
+        emissivity=num("emissivity", 0.0, 0.0, 1.0), flash_point_c=num("flash_point_c", None, 0.0, 600.0),
+        source=meta.get("source", ""), description=meta.get("description", ""),
     )
+
+
+def _numbers(row: list[str]) -> bool:
+    try:
+        [float(x) for x in row[:2]]
+    except ValueError:
+        return False
+    return len(row) >= 2
+
+
+def quenchant_csv_text(q: Quenchant) -> str:
+    """The curve in the CSV format that load_quenchant reads (metadata lines, header, rows).
+
+    >>> print(quenchant_csv_text(Quenchant.constant(500.0, 40.0, name="c")).splitlines()[-1])
+    2000,500
+    """
+    lines = [f"# name: {q.name}"]
+    if q.description:
+        lines.append(f"# description: {q.description}")
+    lines += [f"# kind: {q.kind}", f"# bath_c: {q.bath_c:g}"]
+    if q.agitation:
+        lines.append(f"# agitation: {q.agitation}")
+    if q.flash_point_c is not None:
+        lines.append(f"# flash_point_c: {q.flash_point_c:g}")
+    if q.emissivity > 0:
+        lines.append(f"# emissivity: {q.emissivity:g}")
+    if q.source:
+        lines.append(f"# source: {' '.join(q.source.split())}")
+    lines.append("surface_c,htc_w_m2k")
+    lines += [f"{t:.6g},{h:.5g}" for t, h in zip(q.surface_c, q.htc_w_m2k)]
+    return "\n".join(lines) + "\n"
+
+
+def builtin_quenchants() -> list[Quenchant]:
+    """Every built-in curve, sorted by name."""
+    return [load_quenchant(n) for n in builtin_names()]
 
 
 def load_quenchant(name_or_path: str, base_dir: Path | None = None, key: str = "quench.medium") -> Quenchant:
@@ -145,8 +230,10 @@ def load_quenchant(name_or_path: str, base_dir: Path | None = None, key: str = "
     if base_dir is not None and not path.is_absolute():
         path = base_dir / path
     if path.suffix.lower() != ".csv" or not path.is_file():
-        raise InputError(key, name_or_path, "a built-in quenchant (" + ", ".join(builtin_names())
-                         + ") or the path of an existing .csv file")
+        close = difflib.get_close_matches(str(name_or_path), builtin_names(), n=3, cutoff=0.5)
+        hint = f"; closest: {', '.join(close)}" if close else ""
+        raise InputError(key, name_or_path, f"a built-in quenchant name (`quenchwise quenchants` lists them{hint}) "
+                         "or the path of an existing .csv file")
     try:
         text = path.read_text("utf-8")
     except (OSError, UnicodeDecodeError) as exc:
