@@ -609,3 +609,153 @@ def diagram(
                                                           "utf-8")
             (ttt_figure if kind == "ttt" else cct_figure)(d, staging)
         _emit(json_out, {**summary, "files": [str(f) for f in files]}, _diagram_text(case, summary, files))
+
+
+# -- quenchants and probe fits -------------------------------------------------------------------
+def _file_stem(name: str) -> str:
+    """A file-name-safe version of a curve name."""
+    import re
+
+    return re.sub(r"[^A-Za-z0-9_.-]+", "_", name).strip("._") or "quenchant"
+
+
+def _severity_row(q, s) -> dict:
+    return {"name": q.name, "description": q.description, "kind": q.kind, "bath_c": q.bath_c,
+            "agitation": q.agitation or None, "flash_point_c": q.flash_point_c, "emissivity": q.emissivity,
+            "equivalent_h_per_inch": None if s.grossmann_h != s.grossmann_h else round(s.grossmann_h, 3),
+            "equivalent_htc_w_m2k": None if s.htc_w_m2k != s.htc_w_m2k else round(s.htc_w_m2k, 1),
+            "centre_800_500_s": None if s.time_800_500_s != s.time_800_500_s else round(s.time_800_500_s, 2),
+            "severity_note": s.note or None, "source": q.source}
+
+
+@app.command()
+def quenchants(
+    name: Optional[str] = typer.Argument(None, help="A built-in curve name or a curve CSV path: show that one."),
+    out: Optional[Path] = typer.Option(None, "--out", "-o", help="With NAME: folder for its table (CSV) and h(T) plot."),
+    json_out: bool = typer.Option(False, "--json", help="Print the list (or the one curve) as one JSON object."),
+    overwrite: bool = typer.Option(False, "--overwrite", help="Replace a table already in --out."),
+) -> None:
+    """List the built-in quenchants with bath, agitation, flash point and equivalent Grossmann H;
+    or show one curve (NAME), and with --out write its table and plot."""
+    with _guard():
+        from .thermal.quenchants import builtin_quenchants, load_quenchant, quenchant_csv_text
+        from .thermal.severity import DEFINITION, equivalent_severities
+
+        if name is None:
+            if out is not None:
+                raise InputError("--out", str(out), "only together with a curve NAME")
+            media = builtin_quenchants()
+            _activity(f"computing the equivalent severity of {len(media)} curves")
+            rows = [_severity_row(q, s) for q, s in zip(media, equivalent_severities(media))]
+            lines = [f"{'name':<30}{'bath C':>7}  {'agitation':<10}{'flash C':>8}{'H 1/in':>8}{'h eq W/m2K':>12}  kind"]
+            for r in rows:
+                lines.append(f"{r['name']:<30}{r['bath_c']:>7g}  {r['agitation'] or '-':<10}"
+                             f"{_fmt(r['flash_point_c'], '{:.0f}'):>8}{_fmt(r['equivalent_h_per_inch'], '{:.2f}'):>8}"
+                             f"{_fmt(r['equivalent_htc_w_m2k'], '{:.0f}'):>12}  {r['kind']}")
+            illustrative = sum(r["source"].startswith("illustrative") for r in rows)
+            lines += [f"H: equivalent Grossmann severity, {DEFINITION}.",
+                      f"{illustrative} of {len(rows)} curves are illustrative shapes (invented), not measured data; "
+                      "fit your own bath with `quenchwise probe`. Flash points are illustrative: use your oil's data sheet."]
+            _emit(json_out, {"severity_definition": DEFINITION, "quenchants": rows}, "\n".join(lines))
+            return
+        q = load_quenchant(name, Path.cwd(), key="NAME")
+        stem = _file_stem(q.name)
+        if out is not None:
+            _check_out_dir(out, overwrite, markers=(f"{stem}.csv",))
+        [s] = equivalent_severities([q])
+        row = _severity_row(q, s)
+        files: list[Path] = []
+        if out is not None:
+            from .quenchant_figures import quenchant_figure
+
+            with _staged(out) as (staging, files):
+                (staging / f"{stem}.csv").write_text(quenchant_csv_text(q), "utf-8")
+                quenchant_figure(q, s, staging, f"{stem}_htc")
+        lines = [f"{q.name}" + (f": {q.description}" if q.description else ""),
+                 f"kind {q.kind}, bath {q.bath_c:g} C, agitation {q.agitation or '-'}, flash point "
+                 f"{_fmt(q.flash_point_c, '{:.0f} C')}" + (f", emissivity {q.emissivity:g} (radiation added)" if q.emissivity else ""),
+                 f"equivalent H {_fmt(row['equivalent_h_per_inch'], '{:.2f} 1/in')} "
+                 f"(h {_fmt(row['equivalent_htc_w_m2k'], '{:.0f} W/m2K')}; {DEFINITION})" + (f"; {s.note}" if s.note else ""),
+                 f"source  {q.source or 'not given'}"]
+        if out is None:
+            lines += ["surface_c  htc_w_m2k"] + [f"{t:>9g}  {h:>9g}" for t, h in zip(q.surface_c, q.htc_w_m2k)]
+        else:
+            lines.append("wrote   " + ", ".join(str(f) for f in files))
+        payload = {**row, "severity_definition": DEFINITION,
+                   "table": {"surface_c": q.surface_c.tolist(), "htc_w_m2k": q.htc_w_m2k.tolist()},
+                   "files": [str(f) for f in files]}
+        _emit(json_out, payload, "\n".join(lines))
+
+
+@app.command()
+def probe(
+    curve: Path = typer.Argument(..., help="Probe record CSV: header with time_s and temperature_c (centre of an "
+                                           "ISO 9950 type 12.5 mm alloy 600 probe)."),
+    out: Path = typer.Option(..., "--out", "-o", help="Folder for quenchant.csv, probe_fit.csv and the figure."),
+    bath_c: Optional[float] = typer.Option(None, "--bath-c", help="Bath temperature [C] (else a '# bath_c:' line in the record)."),
+    name: Optional[str] = typer.Option(None, "--name", help="Name of the fitted curve (default: from the record)."),
+    future_s: Optional[float] = typer.Option(None, "--future-s", help="Future window of the inversion [s] "
+                                             "(default: chosen from the record's noise)."),
+    json_out: bool = typer.Option(False, "--json", help="Print the summary as one JSON object, nothing else."),
+    overwrite: bool = typer.Option(False, "--overwrite", help="Replace a fit already in --out."),
+) -> None:
+    """Fit h(T_surface) of a bath from a cooling-curve probe record (inverse conduction) and write it
+    as a quenchant CSV that `run` accepts in [quench] medium."""
+    with _guard():
+        import csv as _csv
+        import io as _io
+
+        from .quenchant_figures import probe_figure
+        from .thermal.probe import fit_probe, read_probe_curve
+        from .thermal.quenchants import quenchant_csv_text
+        from .thermal.severity import DEFINITION, equivalent_severities
+
+        _check_out_dir(out, overwrite, markers=("quenchant.csv", "probe_fit.csv"))
+        record = read_probe_curve(curve)
+        if bath_c is None:
+            if "bath_c" not in record.meta:
+                raise InputError("--bath-c", "(missing)", "the bath temperature in C (option --bath-c, or a "
+                                 "'# bath_c: ...' line in the record)")
+            try:
+                bath_c = float(record.meta["bath_c"])
+            except ValueError:
+                raise InputError("# bath_c", record.meta["bath_c"], "a number (C)", source=str(curve)) from None
+        if not (-20.0 <= bath_c <= 300.0) or bath_c != bath_c:
+            raise InputError("--bath-c", bath_c, "a number from -20 to 300 (C)")
+        if bath_c > float(record.temperature_c.min()) + 5.0:
+            raise InputError("--bath-c", bath_c, f"a bath not above the coolest measured temperature "
+                             f"({record.temperature_c.min():g} C)")
+        if future_s is not None and not (0.05 <= future_s <= 10.0):
+            raise InputError("--future-s", future_s, "a number from 0.05 to 10 (s)")
+        _activity(f"fitting the probe record {curve}")
+        q, fit = fit_probe(record, bath_c, name=name or f"{_file_stem(record.name)}_fit", future_s=future_s)
+        [s] = equivalent_severities([q])
+        table = _io.StringIO()
+        w = _csv.writer(table, lineterminator="\n")
+        w.writerow(["time_s", "measured_c", "refit_c", "surface_c", "flux_w_m2", "htc_w_m2k"])
+        for row in zip(fit.time_s, fit.measured_c, fit.refit_c, fit.surface_c, fit.flux_w_m2, fit.htc_w_m2k):
+            w.writerow([f"{row[0]:.4f}", f"{row[1]:.2f}", f"{row[2]:.2f}", f"{row[3]:.2f}", f"{row[4]:.1f}",
+                        "" if row[5] != row[5] else f"{row[5]:.1f}"])
+        with _staged(out) as (staging, files):
+            (staging / "quenchant.csv").write_text(quenchant_csv_text(q), "utf-8")
+            (staging / "probe_fit.csv").write_text(table.getvalue(), "utf-8")
+            probe_figure(fit, q, staging)
+        summary = {"name": q.name, "record": str(curve), "samples": int(record.time_s.size), "bath_c": bath_c,
+                   "method": "Beck's sequential function specification, 1-D alloy 600 cylinder 12.5 mm",
+                   "time_step_s": round(fit.dt_s, 6), "future_steps": fit.future_steps, "regularization": fit.regularization,
+                   "noise_k": None if fit.noise_k != fit.noise_k else round(fit.noise_k, 3),
+                   "refit_rms_k": round(fit.rms_k, 2), "refit_max_k": round(fit.max_k, 2),
+                   "surface_range_c": [float(q.surface_c[0]), float(q.surface_c[-1])],
+                   "equivalent_h_per_inch": None if s.grossmann_h != s.grossmann_h else round(s.grossmann_h, 3),
+                   "severity_definition": DEFINITION, "files": [str(f) for f in files]}
+        lines = [f"probe fit {q.name}: {record.time_s.size} samples from {curve}, bath {bath_c:g} C",
+                 f"method  Beck's sequential function specification on a 1-D alloy 600 cylinder (12.5 mm), "
+                 f"{fit.future_steps} future steps of {fit.dt_s:.4g} s" + (f" (noise {fit.noise_k:.2f} K)" if fit.noise_k == fit.noise_k else "")
+                 + (f"; end faces corrected (up to {fit.end_correction_k:.1f} K)" if fit.end_correction_k else ""),
+                 f"refit   RMS {fit.rms_k:.2f} K, max {fit.max_k:.2f} K (measured centre vs the fitted curve run forward)",
+                 f"curve   surface {q.surface_c[0]:.0f}-{q.surface_c[-1]:.0f} C (held constant beyond), peak h "
+                 f"{q.htc_w_m2k.max():.0f} W/m2K at {q.surface_c[int(q.htc_w_m2k.argmax())]:.0f} C; equivalent H "
+                 f"{_fmt(summary['equivalent_h_per_inch'], '{:.2f} 1/in')}",
+                 f"use     [quench] medium = \"{out / 'quenchant.csv'}\"",
+                 "wrote   " + ", ".join(str(f) for f in files)]
+        _emit(json_out, summary, "\n".join(line for line in lines if line))
