@@ -476,7 +476,6 @@ def _jominy_text(summary: dict, files: list[Path]) -> str:
                 f"{di['physics_over_a255']:.2f}" if di.get("physics") else ""),
              "",
              f"{'1/16 in':>8}{'mm':>8}{'HRC':>7}{'HV':>7}{'C/s at 700 C':>14}{'martensite %':>14}"]
-    band = {round(r["distance_mm"], 2): r for r in s.get("band", {}).get("rows", [])}
     for r in s["readings"]:
         if r["sixteenths"] <= 16 or r["sixteenths"] % 4 == 0:
             lines.append(f"{r['sixteenths']:>8}{r['distance_mm']:>8.1f}{_fmt(r['hrc']):>7}{_fmt(r['hv'], '{:.0f}'):>7}"
@@ -486,7 +485,6 @@ def _jominy_text(summary: dict, files: list[Path]) -> str:
         lines.append(f"band    {b['inside']} of {b['of']} band rows inside: "
                      + ", ".join(f"{r['distance_mm']:g} mm {_fmt(r['hrc'])} HRC in [{_fmt(r['min_hrc'], '{:g}')}, "
                                  f"{_fmt(r['max_hrc'], '{:g}')}]{'' if r['inside'] else ' OUT'}" for r in b["rows"]))
-    del band
     for w in s["warnings"]:
         lines.append(f"warning {w}")
     if files:
