@@ -146,6 +146,9 @@ class JominyResult:
             "readings": rows,
             "warnings": list(c.composition.range_warnings()) + list(self.di_a255.notes),
         }
+        if self.di_physics is not None and c.grain_size != 7.0:
+            out["warnings"].append(f"the A255 DI is on a grain size 7 basis; the simulated DI uses this steel's grain "
+                                   f"size {c.grain_size:g}, so their ratio is not like for like")
         if self.di_physics is not None:
             out["di"]["physics_over_a255"] = round(self.di_physics.inches / self.di_a255.inches, 3)
         if band is not None:
