@@ -169,6 +169,8 @@ def _summary_text(summary: dict, files: list[Path]) -> str:
         + f"  ({steel['critical_temperatures']})",
         f"part    {s['part']['shape']} " + ", ".join(f"{k} {v}" for k, v in s["part"].items() if k != "shape"),
         f"quench  {s['quench']['outer']} at {s['quench']['bath_c']:g} C"
+        + (f" (equivalent Grossmann H {s['quench']['equivalent_h_per_inch']:.2f} 1/in)"
+           if s["quench"].get("equivalent_h_per_inch") is not None else "")
         + (f"; bore: {s['quench']['inner']}" if s["quench"]["inner"] else "")
         + f"; until the hottest point is below {s['quench']['end_c']:g} C ({s['time_to_end_s']:.1f} s, {s['steps']} steps)",
         "",
@@ -211,13 +213,14 @@ def run(
         from .case import load_case
         from .plots import cooling_figure, hardness_figure
         from .results import write_profile_csv, write_result_h5
-        from .workflows import simulate_case
+        from .workflows import attach_equivalent_severity, simulate_case
 
         _check_out_dir(out, overwrite)
         case = load_case(case_file)
         _activity(f"solving the quench of {case_file}")
         with _Progress(not json_out, "quenching") as progress:
             result = simulate_case(case, progress)
+            attach_equivalent_severity([result])
         with _staged(out) as (staging, files):
             write_result_h5(result, staging / "result.h5")
             write_profile_csv(result, staging / "profile.csv")
@@ -258,10 +261,6 @@ def main(version: Optional[bool] = typer.Option(None, "--version", help="Print t
     if version:
         typer.echo(f"quenchwise {__version__}")
         raise typer.Exit(0)
-
-
-if __name__ == "__main__":  # pragma: no cover
-    app()
 
 
 def _emit(json_out: bool, payload: dict, text: str) -> None:
@@ -440,13 +439,14 @@ def sheet(
     with _guard():
         from .case import load_case
         from .report import key_numbers, sheet_rows, write_sheet
-        from .workflows import simulate_case
+        from .workflows import attach_equivalent_severity, simulate_case
 
         _check_out_dir(out, overwrite, markers=("sheet.pdf",))
         case = load_case(case_file)
         _activity(f"solving the quench of {case_file}")
         with _Progress(not json_out, "quenching") as progress:
             result = simulate_case(case, progress)
+            attach_equivalent_severity([result])
         with _staged(out) as (staging, files):
             write_sheet(result, staging)
         keys = key_numbers(result)
@@ -757,3 +757,7 @@ def probe(
                  f"use     [quench] medium = \"{out / 'quenchant.csv'}\"",
                  "wrote   " + ", ".join(str(f) for f in files)]
         _emit(json_out, summary, "\n".join(line for line in lines if line))
+
+
+if __name__ == "__main__":  # pragma: no cover
+    app()

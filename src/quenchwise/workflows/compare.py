@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Callable
 
@@ -60,6 +61,7 @@ def compare(case: Case, media: list[Quenchant], progress: Callable[[float], None
     severity = equivalent_severity(media)
     rows = []
     for medium, res, h in zip(media, results, severity):
+        h = None if h is None or not math.isfinite(h) else h
         pts = res.summary()["points"]
         limit = limit_hardness_hrc(res)
         rows.append({

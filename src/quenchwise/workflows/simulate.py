@@ -114,6 +114,32 @@ def simulate_case(case: Case, progress: Callable[[float], None] | None = None) -
     return simulate([case], progress)[0]
 
 
+def attach_equivalent_severity(results: list[Result]) -> None:
+    """Put the equivalent Grossmann H of each result's quenchants into result.extra
+    ("equivalent_h": {"outer": H, "inner": H}); constants exactly, curves in one severity batch
+    (thermal.severity; about a second for the sweep)."""
+    from ..thermal.quenchants import grossmann_from_htc
+    from ..thermal.severity import equivalent_severities
+
+    curves: dict[int, object] = {}
+    for r in results:
+        for q in (r.case.outer, r.case.inner):
+            if q is not None and q.kind != "constant":
+                curves[id(q)] = q
+    found = dict(zip(curves, equivalent_severities(list(curves.values())))) if curves else {}
+
+    def value(q):
+        if q is None:
+            return None
+        if q.kind == "constant":
+            return float(grossmann_from_htc(q.htc_w_m2k[0]))
+        h = found[id(q)].grossmann_h
+        return float(h) if np.isfinite(h) else None
+
+    for r in results:
+        r.extra["equivalent_h"] = {"outer": value(r.case.outer), "inner": value(r.case.inner)}
+
+
 def _rate_700(history) -> np.ndarray:
     """Cooling rate at 700 C of each node from the stored history (pure conduction runs)."""
     t, temp = history.time_s, history.temperature_c
