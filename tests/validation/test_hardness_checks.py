@@ -84,3 +84,15 @@ def test_no_silent_extrapolation_soft_values_go_to_hrb():
     # Below HRC 20 the conversion gives NaN (never extrapolated) and HRB covers the value.
     assert np.isnan(hrc_from_hv(200.0)) and 90.0 < float(hrb_from_hv(200.0)) < 95.0
     assert np.isnan(hrb_from_hv(400.0)) and np.isnan(hrc_from_hv(1200.0))
+
+
+def test_high_carbon_martensite_levels_off_near_65_hrc():
+    # As-quenched martensite hardness levels off near 65 HRC from about 0.6 %C (Krauss, G. (1999),
+    # Mater. Sci. Eng. A 273-275, 40; memory, +/-3 HRC): eutectoid and 52100-type austenite.
+    import numpy as np
+
+    from quenchwise.hardness import hardness_hv, hrc_from_hv
+
+    for chem in (dict(c=0.77, mn=0.75, si=0.2), dict(c=1.0, mn=0.35, si=0.25, cr=1.45)):
+        hv = hardness_hv({"martensite": np.array([1.0])}, np.array([150.0]), chem)
+        assert 62.0 <= float(hrc_from_hv(hv)[0]) <= 68.0, chem

@@ -19,6 +19,12 @@ from __future__ import annotations
 
 import numpy as np
 
+#: Carbon above which the hardness of martensite no longer rises [wt%]. Maynier's martensite
+#: formula is linear in carbon and was fitted up to about 0.5 %C; as-quenched martensite hardness
+#: levels off near 65 HRC from about 0.6 %C (Krauss, G. (1999), "Martensite in steel: strength and
+#: structure", Mater. Sci. Eng. A 273-275, 40-57; memory). The formula is therefore evaluated with
+#: the carbon capped here, which keeps eutectoid and bearing steels on the HRC scale.
+MARTENSITE_CARBON_PLATEAU_WT = 0.6
 #: Range of cooling rates the fits were made on, C/h (memory); rates are clipped to it.
 RATE_RANGE_C_H = (1.0, 1.0e7)
 #: Hardness counted for retained austenite [HV] (memory: quenched-steel retained austenite is
@@ -76,11 +82,15 @@ def phase_hardness_hv(rate_700_c_s, chem: dict) -> dict:
     >>> h = phase_hardness_hv(np.array([100.0]), dict(c=0.4, si=0.25, mn=0.85, cr=0.95, mo=0.2))
     >>> {k: round(float(v[0])) for k, v in h.items()}
     {'martensite': 655, 'bainite': 428, 'ferrite_pearlite': 252}
+    >>> h = phase_hardness_hv(np.array([100.0]), dict(c=1.0, si=0.25, mn=0.35, cr=1.45))   # 52100: plateau
+    >>> round(float(h["martensite"][0]))
+    847
     """
     rate_c_h = np.asarray(rate_700_c_s, dtype=float) * 3600.0
     e = {k: chem.get(k, 0.0) for k in ("c", "si", "mn", "ni", "cr", "mo", "v")}
     return {
-        "martensite": maynier_martensite_hv(rate_c_h, e["c"], e["si"], e["mn"], e["ni"], e["cr"]),
+        "martensite": maynier_martensite_hv(rate_c_h, np.minimum(e["c"], MARTENSITE_CARBON_PLATEAU_WT),
+                                            e["si"], e["mn"], e["ni"], e["cr"]),
         "bainite": maynier_bainite_hv(rate_c_h, e["c"], e["si"], e["mn"], e["ni"], e["cr"], e["mo"]),
         "ferrite_pearlite": maynier_ferrite_pearlite_hv(rate_c_h, **e),
     }
