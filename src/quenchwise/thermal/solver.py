@@ -88,6 +88,11 @@ from .properties import DENSITY_KG_M3, PropertyTables, group_weights
 from .quenchants import STEFAN_BOLTZMANN, Quenchant
 
 
+#: Numerical guards checked at every step (see BatchSolver._guard).
+GUARD_TOLERANCE_K = 2.0
+FRACTION_TOLERANCE = 1e-9
+
+
 class SolverError(RuntimeError):
     """The time integration could not finish a case (names the case and the time reached)."""
 
@@ -348,6 +353,29 @@ class BatchSolver:
         t_surf = (g * t_cell + h * bath) / (g + h)
         return sf.area[rows] * h_eff, t_surf
 
+    def _guard(self, temperature, active_node, fractions, time_s) -> None:
+        """Stop with a SolverError naming the case and the time when the state stops being physical:
+        a temperature outside [coldest bath, start temperature] by more than GUARD_TOLERANCE_K, or
+        phase fractions outside [0, 1] or not summing to 1 within FRACTION_TOLERANCE."""
+        outside = active_node & ((temperature < self.bath_of_node - GUARD_TOLERANCE_K)
+                                 | (temperature > self.initial + GUARD_TOLERANCE_K))
+        if outside.any():
+            j = int(np.flatnonzero(outside)[0])
+            i = int(self.case_of_node[j])
+            raise SolverError(f"case {self.cases[i].name!r}: temperature {temperature[j]:.1f} C left the range from the "
+                              f"bath ({self.bath_of_node[j]:g} C) to the start ({self.initial[j]:g} C) at t = {time_s[i]:.4g} s")
+        if fractions is None:
+            return
+        values = np.array([np.asarray(v, dtype=float) for v in fractions.values()])
+        total = values.sum(axis=0)
+        broken = active_node & ((values.min(axis=0) < -FRACTION_TOLERANCE) | (values.max(axis=0) > 1 + FRACTION_TOLERANCE)
+                                | (np.abs(total - 1.0) > FRACTION_TOLERANCE))
+        if broken.any():
+            j = int(np.flatnonzero(broken)[0])
+            i = int(self.case_of_node[j])
+            raise SolverError(f"case {self.cases[i].name!r}: phase fractions at node {j - self.starts[i]} sum to "
+                              f"{total[j]:.12g} (must be 1 within {FRACTION_TOLERANCE:g}) at t = {time_s[i]:.4g} s")
+
     def run(self, stepper=None, progress: Callable[[float], None] | None = None) -> list[CaseHistory]:
         """Integrate every case until its hottest node is below its end temperature.
 
@@ -445,6 +473,7 @@ class BatchSolver:
             if not np.all(np.isfinite(new)):
                 bad = int(self.case_of_node[np.flatnonzero(~np.isfinite(new))[0]])
                 raise SolverError(f"case {self.cases[bad].name!r}: temperature not finite at t = {t_case[bad]:.3g} s")
+            self._guard(new, active_node, fractions if stepper is not None else None, t_case + dt_case)
             d_temp = np.abs(new - temperature)
             previous_t = temperature
             last_change = np.where(active_node, new - temperature, last_change)
