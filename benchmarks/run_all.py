@@ -10,7 +10,8 @@ Each benchmark is a function registered with @benchmark(name); it receives the s
 banded reference replays) and returns a list of (figure, value, unit, target or None) rows.
 Times are the best of --repeat runs (wall clock, time.perf_counter) measured side by side in one
 process, after one untimed warm-up of FiPy; the median is shown too because the machine may be
-shared. Add chemistry-band, sizing-search or end-quench benchmarks as further functions.
+shared. The `questions` benchmark times the chemistry band, the sizing search and the end-quench
+test against one solve of the same case.
 """
 
 from __future__ import annotations
@@ -212,6 +213,44 @@ def surface_conditions(ctx, repeat):
 
 
 # -- harness ---------------------------------------------------------------------------------
+# -- the engineer's questions, each against the same case solved alone ---------------------------
+CASES_DIR = Path(__file__).resolve().parents[1] / "cases"
+
+
+def _pin_case():
+    from quenchwise.case import load_case
+
+    return load_case(CASES_DIR / "pin_sizing.toml")
+
+
+@benchmark("questions")
+def questions(ctx, repeat):
+    """Chemistry band (N = 200), the sizing search and the end-quench test on the demo pin
+    (4140, 50 mm bar, still oil, 45 HRC at 5 mm), each beside one solve of the pin alone:
+    the ratio says how many single solves each answer costs."""
+    from quenchwise.workflows import simulate
+    from quenchwise.workflows.band import band
+    from quenchwise.workflows.jominy import jominy
+    from quenchwise.workflows.size import size
+
+    case = _pin_case()
+    single, _, single_cpu, _ = timed(lambda: simulate([case]), repeat)
+    band_t, _, band_cpu, _ = timed(lambda: band(case, samples=200, seed=1), repeat)
+    size_t, _, size_cpu, answer = timed(lambda: size(case), 1)
+    solved = len(answer.severity.evaluated) + len(answer.quenchants) + len(answer.size.evaluated)
+    jom_t, _, jom_cpu, _ = timed(lambda: jominy([case], physics_di=False), repeat)
+    jdi_t, _, _, _ = timed(lambda: jominy([case], physics_di=True), 1)
+    return [("(q) demo pin solved alone: wall time", single, "s", None),
+            ("(q) chemistry band, 200 heats in one batch: wall time", band_t, "s", None),
+            ("(q) ... per heat / single solve", band_t / 200 / single, "", None),
+            ("(q) ... CPU per heat / single CPU", band_cpu / 200 / single_cpu, "", None),
+            ("(q) sizing search (severity, all built-in quenchants, size): wall time", size_t, "s", None),
+            ("(q) ... cases solved / wall time in single solves", f"{solved} / {size_t / single:.1f}", "", None),
+            ("(q) end-quench test, 1-D axial, no DI search: wall time", jom_t, "s", None),
+            ("(q) ... / single solve", jom_t / single, "", None),
+            ("(q) end-quench test with the simulated DI search: wall time", jdi_t, "s", None)]
+
+
 def machine() -> list[str]:
     cpu = "unknown"
     try:

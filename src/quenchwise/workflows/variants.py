@@ -9,12 +9,21 @@ from ..thermal.geometry import Section
 from ..thermal.quenchants import Quenchant
 
 
+#: A bath at or above the case's end temperature (hot oil, salt) ends the quench this far above
+#: the bath; the part then cools to room temperature in air, where the remaining austenite can
+#: still turn to martensite (workflows.simulate.ROOM_C).
+HOT_BATH_END_MARGIN_K = 20.0
+
+
 def with_quenchant(case: Case, quenchant: Quenchant) -> Case:
-    """The same part in another quenchant; a tube bore that shared the outer medium follows it."""
+    """The same part in another quenchant; a tube bore that shared the outer medium follows it.
+    The quench ends at the case's end_c, or HOT_BATH_END_MARGIN_K above a hotter bath."""
     inner = case.inner
     if inner is not None and inner is case.outer:
         inner = quenchant
-    return replace(case, outer=quenchant, inner=inner)
+    baths = [q.bath_c for q in (quenchant, inner) if q is not None]
+    end_c = max(case.end_c, max(baths) + HOT_BATH_END_MARGIN_K)
+    return replace(case, outer=quenchant, inner=inner, end_c=end_c)
 
 
 def size_label(case: Case) -> str:
