@@ -40,7 +40,7 @@ import numpy as np
 from fipy.solvers.scipy import LinearLUSolver
 from scipy.optimize import brentq
 
-from .properties import DENSITY_KG_M3, PropertyTables, group_weights
+from .properties import DENSITY_KG_M3, ConstantOverrides, PropertyTables, group_weights
 from .quenchants import Quenchant
 from .solver import SolverError
 
@@ -235,8 +235,7 @@ class EndQuenchSolver:
             return np.repeat(np.array([default if v is None else v for v in vals], dtype=float), nr * nz)
 
         self.density = per_cell("density_kg_m3", DENSITY_KG_M3)
-        self.k_override = per_cell("conductivity_w_mk", np.nan)
-        self.cp_override = per_cell("specific_heat_j_kgk", np.nan)
+        self.overrides = ConstantOverrides(per_cell("conductivity_w_mk", np.nan), per_cell("specific_heat_j_kgk", np.nan))
         self.initial = per_cell("initial_c", np.nan)
         self.end_c = np.array([b.end_c for b in self.bars], dtype=float)
 
@@ -254,20 +253,6 @@ class EndQuenchSolver:
         self._surface_table()
 
     # -- pieces of one step -------------------------------------------------------------------
-    def _properties(self, temperature, mixture):
-        """Conductivity, specific heat and sensible enthalpy per cell (tables or constant overrides)."""
-        k, cp, h = mixture.evaluate(temperature)
-        k = np.where(np.isnan(self.k_override), k, self.k_override)
-        fixed = ~np.isnan(self.cp_override)
-        cp = np.where(fixed, self.cp_override, cp)
-        h = np.where(fixed, self.cp_override * temperature, h)
-        return k, cp, h
-
-    def _temperature_for(self, enthalpy, mixture, guess):
-        t = mixture.temperature_for_enthalpy(enthalpy, guess)
-        fixed = ~np.isnan(self.cp_override)
-        return np.where(fixed, enthalpy / np.where(fixed, self.cp_override, 1.0), t)
-
     def _surface_table(self):
         """Every surface face once: its cell, area, centre-to-face distance, bar and quenchant."""
         cells, area, half, bar, media = [], [], [], [], []
@@ -334,7 +319,7 @@ class EndQuenchSolver:
         temperature = self.initial.copy()
         fractions = stepper.fractions() if stepper is not None else {"austenite": np.ones(n)}
         mixture = self.tables.mixture(group_weights(fractions, n))
-        k, cp, enthalpy = self._properties(temperature, mixture)
+        k, cp, enthalpy = self.overrides.properties(temperature, mixture)
         dt_bar = np.full(nb, s.first_step_s)
         t_bar = np.zeros(nb)
         active = np.ones(nb, dtype=bool)
@@ -357,7 +342,7 @@ class EndQuenchSolver:
             b_bar = w_bar * w_bar / (1.0 + w_bar)
             a0, b = a0_bar[bar_of], b_bar[bar_of]
             extrapolated = temperature + w_bar[bar_of] * last_change
-            k, _, h_end = self._properties(extrapolated, mixture)
+            k, _, h_end = self.overrides.properties(extrapolated, mixture)
             rise = extrapolated - temperature
             moved = np.abs(rise) > 1e-6
             cp_step = np.where(moved, (h_end - enthalpy) / np.where(moved, rise, 1.0), cp)
@@ -380,7 +365,7 @@ class EndQuenchSolver:
             q_prev = np.where(active[face_bar], q, q_prev)
             heat_face += q
             e_now = np.where(active_cell, cp_step * (solved - temperature), 0.0)
-            new = np.where(active_cell, self._temperature_for(enthalpy + e_now, mixture, solved), temperature)
+            new = np.where(active_cell, self.overrides.temperature_for(enthalpy + e_now, mixture, solved), temperature)
             change = np.zeros(n)
             if stepper is not None:
                 latent, change = stepper.advance(temperature, new, dt_cell)
@@ -390,9 +375,9 @@ class EndQuenchSolver:
                 fractions = stepper.fractions()
                 self.tables.mixture(group_weights(fractions, n), out=mixture)
                 if np.any(latent != 0.0):     # temperature recovery at the new phase mixture
-                    _, cp_new, h_new = self._properties(new, mixture)
+                    _, cp_new, h_new = self.overrides.properties(new, mixture)
                     guess = new + latent / cp_new
-                    new = np.where(latent != 0.0, self._temperature_for(h_new + latent, mixture, guess), new)
+                    new = np.where(latent != 0.0, self.overrides.temperature_for(h_new + latent, mixture, guess), new)
             if not np.all(np.isfinite(new)):
                 bad = int(bar_of[np.flatnonzero(~np.isfinite(new))[0]])
                 raise SolverError(f"specimen {self.bars[bad].name!r}: temperature not finite at t = {t_bar[bad]:.3g} s")
@@ -401,7 +386,7 @@ class EndQuenchSolver:
             e_prev = np.where(active_cell, e_now, e_prev)
             dt_prev = np.where(active, dt_bar, dt_prev)
             temperature = new
-            k, cp, enthalpy = self._properties(temperature, mixture)
+            k, cp, enthalpy = self.overrides.properties(temperature, mixture)
             t_bar = np.where(active, t_bar + dt_bar, t_bar)
             steps += active
             hottest = np.maximum.reduceat(temperature, self.starts)

@@ -84,7 +84,7 @@ from fipy.solvers.scipy import LinearLUSolver
 from scipy.linalg import solve_banded
 
 from .geometry import Section
-from .properties import DENSITY_KG_M3, PropertyTables, group_weights
+from .properties import DENSITY_KG_M3, ConstantOverrides, PropertyTables, group_weights
 from .quenchants import STEFAN_BOLTZMANN, Quenchant
 
 
@@ -299,8 +299,7 @@ class BatchSolver:
             return np.repeat(np.array([default if v is None else v for v in vals], dtype=float), self.counts)
 
         self.density = per_node("density_kg_m3", DENSITY_KG_M3)
-        self.k_override = per_node("conductivity_w_mk", np.nan)
-        self.cp_override = per_node("specific_heat_j_kgk", np.nan)
+        self.overrides = ConstantOverrides(per_node("conductivity_w_mk", np.nan), per_node("specific_heat_j_kgk", np.nan))
         self.initial = per_node("initial_c", np.nan)
         self.end_c = np.array([c.end_c for c in self.cases], dtype=float)
         self.mass = self.density * self.weight * self.dx          # kg per unit measure, per node
@@ -325,20 +324,6 @@ class BatchSolver:
         self.centre_distance = 0.5 * (self.dx[j - 1] + self.dx[j])
 
     # -- pieces of one step -------------------------------------------------------------------
-    def _properties(self, temperature, mixture):
-        """Conductivity, specific heat and sensible enthalpy per node (tables or constant overrides)."""
-        k, cp, h = mixture.evaluate(temperature)
-        k = np.where(np.isnan(self.k_override), k, self.k_override)
-        fixed = ~np.isnan(self.cp_override)
-        cp = np.where(fixed, self.cp_override, cp)
-        h = np.where(fixed, self.cp_override * temperature, h)
-        return k, cp, h
-
-    def _temperature_for(self, enthalpy, mixture, guess):
-        t = mixture.temperature_for_enthalpy(enthalpy, guess)
-        fixed = ~np.isnan(self.cp_override)
-        return np.where(fixed, enthalpy / np.where(fixed, self.cp_override, 1.0), t)
-
     def _surface(self, temperature, k, rows):
         """Effective coefficient times area (surface film in series with the half cell) and
         surface temperature estimate, for the listed surface rows."""
@@ -393,7 +378,7 @@ class BatchSolver:
         t_case = np.zeros(n_cases)
         active = np.ones(n_cases, dtype=bool)
         steps = np.zeros(n_cases, dtype=int)
-        k, cp, enthalpy = self._properties(temperature, mixture)
+        k, cp, enthalpy = self.overrides.properties(temperature, mixture)
         # At t = 0 the outer surface is at the initial temperature: the half-cell estimate used
         # afterwards assumes a flux already established through the surface half cell.
         has_outer = self.outer_row >= 0
@@ -422,7 +407,7 @@ class BatchSolver:
             # T(n) to there. Any cp > 0 keeps the energy exact (see above); the secant makes the
             # solved temperature agree with the enthalpy-converted one to second order.
             extrapolated = temperature + w_case[self.case_of_node] * last_change
-            k, cp_end, h_end = self._properties(extrapolated, mixture)
+            k, cp_end, h_end = self.overrides.properties(extrapolated, mixture)
             rise = extrapolated - temperature
             moved = np.abs(rise) > 1e-6
             cp = np.where(moved, (h_end - enthalpy) / np.where(moved, rise, 1.0), cp)
@@ -457,7 +442,7 @@ class BatchSolver:
 
             # Conduction enthalpy -> temperature through the exact enthalpy of the mixture.
             e_now = np.where(active_node, cp * (solved - temperature), 0.0)
-            new = np.where(active_node, self._temperature_for(enthalpy + e_now, mixture, solved), temperature)
+            new = np.where(active_node, self.overrides.temperature_for(enthalpy + e_now, mixture, solved), temperature)
             change = np.zeros(self.n_nodes)
             if stepper is not None:
                 latent, change = stepper.advance(temperature, new, dt_node)
@@ -467,9 +452,9 @@ class BatchSolver:
                 fractions = stepper.fractions()
                 self.tables.mixture(group_weights(fractions, self.n_nodes), out=mixture)
                 if np.any(latent != 0.0):     # temperature recovery at the new phase mixture
-                    _, cp_new, h_new = self._properties(new, mixture)
+                    _, cp_new, h_new = self.overrides.properties(new, mixture)
                     guess = new + latent / cp_new
-                    new = np.where(latent != 0.0, self._temperature_for(h_new + latent, mixture, guess), new)
+                    new = np.where(latent != 0.0, self.overrides.temperature_for(h_new + latent, mixture, guess), new)
             if not np.all(np.isfinite(new)):
                 bad = int(self.case_of_node[np.flatnonzero(~np.isfinite(new))[0]])
                 raise SolverError(f"case {self.cases[bad].name!r}: temperature not finite at t = {t_case[bad]:.3g} s")
@@ -480,7 +465,7 @@ class BatchSolver:
             e_prev = np.where(active_node, e_now, e_prev)
             dt_prev = np.where(active, dt_case, dt_prev)
             temperature = new
-            k, cp, enthalpy = self._properties(temperature, mixture)
+            k, cp, enthalpy = self.overrides.properties(temperature, mixture)
             t_case = np.where(active, t_case + dt_case, t_case)
             steps += active
             hottest = np.maximum.reduceat(temperature, self.starts)
