@@ -284,8 +284,11 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
     )
 
 
-def load_case(path: str | Path) -> Case:
-    """Read and validate a case file; any problem is one InputError naming the file."""
+def load_case(path: str | Path, defaults: dict | None = None) -> Case:
+    """Read and validate a case file; any problem is one InputError naming the file.
+
+    defaults: whole tables used where the file has none (e.g. the end-quench test supplies its
+    own [part] and [quench])."""
     p = Path(path)
     name = str(path)
     try:
@@ -300,6 +303,8 @@ def load_case(path: str | Path) -> Case:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError("case file", name, f"valid TOML ({exc})") from None
+    if defaults:
+        data = {**data, **{k: v for k, v in defaults.items() if k not in data}}
     try:
         return parse_case(data, text, name, p.parent)
     except InputError as exc:

@@ -24,14 +24,13 @@ from __future__ import annotations
 import csv
 import io
 import math
-import tomllib
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 from typing import Callable
 
 import numpy as np
 
-from ..case import Case, parse_case
+from ..case import Case, load_case
 from ..errors import InputError
 from ..hardness import hardness_hv, hrb_from_hv, hrc_from_hv
 from ..hardness.hardenability import IdealDiameter, a255_ideal_diameter
@@ -235,23 +234,7 @@ _STAND_IN = {"part": {"shape": "bar", "diameter_mm": 25.0},
 def load_steel_case(path: str | Path) -> Case:
     """A case file for the end-quench test: [steel] (and [transform]) are used; [part] and
     [quench] may be left out (they are ignored: the test fixes the specimen and the jet)."""
-    p = Path(path)
-    name = str(path)
-    try:
-        text = p.read_bytes().decode("utf-8")
-    except OSError as exc:
-        raise InputError("case file", name, f"an existing, readable file ({exc.strerror or type(exc).__name__})") from None
-    except UnicodeDecodeError as exc:
-        raise InputError("case file", name, f"UTF-8 text (bad byte at position {exc.start})") from None
-    try:
-        data = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError("case file", name, f"valid TOML ({exc})") from None
-    data = {**data, **{k: v for k, v in _STAND_IN.items() if k not in data}}
-    try:
-        return parse_case(data, text, name, p.parent)
-    except InputError as exc:
-        raise exc.with_source(name) from None
+    return load_case(path, defaults=_STAND_IN)
 
 
 def read_band(path: str | Path) -> list[BandRow]:
