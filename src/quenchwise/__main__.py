@@ -1,5 +1,5 @@
 """`python -m quenchwise ...` runs the command line (same as the `quenchwise` script)."""
 
-from .cli import app
+from .cli import entry
 
-app(prog_name="quenchwise")
+entry()

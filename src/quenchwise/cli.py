@@ -759,5 +759,33 @@ def probe(
         _emit(json_out, summary, "\n".join(line for line in lines if line))
 
 
+def entry() -> None:
+    """The `quenchwise` console script: the typer app, with every usage error (unknown option, bad
+    or missing value) as one line on stderr and exit status 2, like bad input in a case file."""
+    try:  # recent typer carries its own copy of click
+        from typer._click import exceptions as click_errors
+    except ImportError:  # pragma: no cover - older typer on top of click
+        from click import exceptions as click_errors
+
+    command = typer.main.get_command(app)
+    try:
+        status = command.main(prog_name="quenchwise", standalone_mode=False)
+    except click_errors.NoArgsIsHelpError as exc:
+        typer.echo(exc.ctx.get_help())
+        raise SystemExit(0) from None
+    except click_errors.UsageError as exc:
+        where = exc.ctx.command_path if exc.ctx is not None else "quenchwise"
+        message = " ".join(exc.format_message().split())
+        typer.echo(f"{where}: {message} (see '{where} --help')", err=True)
+        raise SystemExit(2) from None
+    except click_errors.ClickException as exc:
+        typer.echo(f"quenchwise: {' '.join(exc.format_message().split())}", err=True)
+        raise SystemExit(exc.exit_code) from None
+    except typer.Abort:
+        typer.echo("quenchwise: aborted", err=True)
+        raise SystemExit(130) from None
+    raise SystemExit(status if isinstance(status, int) else 0)
+
+
 if __name__ == "__main__":  # pragma: no cover
-    app()
+    entry()

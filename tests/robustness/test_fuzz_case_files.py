@@ -149,3 +149,22 @@ def test_missing_case_file_through_the_command_line(tmp_path):
     r = subprocess.run([sys.executable, "-m", "quenchwise", "run", str(tmp_path / "nope.toml"), "--out",
                         str(tmp_path / "o")], capture_output=True, text=True, timeout=60)
     assert r.returncode == 2 and "nope.toml" in r.stderr and len(r.stderr.strip().splitlines()) == 1
+
+
+@pytest.mark.parametrize("args", [
+    ["run"],                                                   # missing argument
+    ["run", "CASE", "--out", "o", "--bogus"],                  # unknown option
+    ["band", "CASE", "--out", "o", "--samples", "0"],          # value out of its range
+    ["band", "CASE", "--out", "o", "--samples", "many"],       # wrong type
+    ["size", "CASE", "--out", "o", "--min-hrc", "nan"],        # not a number the requirement allows
+    ["diagram", "CASE", "--out", "o", "--kind", "xyz"],        # not one of the choices
+    ["nosuchcommand"],
+])
+def test_bad_options_are_one_line_and_status_2(tmp_path, args):
+    case = tmp_path / "case.toml"
+    case.write_text(to_toml(VALID))
+    argv = [str(case) if a == "CASE" else (str(tmp_path / a) if a == "o" else a) for a in args]
+    r = subprocess.run([sys.executable, "-m", "quenchwise", *argv], capture_output=True, text=True, timeout=60)
+    assert r.returncode == 2, r.stderr
+    assert len(r.stderr.strip().splitlines()) == 1 and "Traceback" not in r.stderr, r.stderr
+    assert not (tmp_path / "o").exists()
