@@ -29,7 +29,7 @@ SECTIONS = {
     "temper": {"temperature_c", "hours"},
     "transform": {"model", "martensite"},
     "thermal": {"conductivity_w_mk", "density_kg_m3", "specific_heat_j_kgk"},
-    "mesh": {"cells", "growth", "max_temperature_step_k", "max_fraction_step"},
+    "mesh": {"cells", "growth", "max_temperature_step_k", "max_fraction_step", "max_relative_step"},
     "requirement": {"min_hrc", "min_martensite_pct", "depth_mm"},
     "compare": {"media"},
 }
@@ -274,6 +274,7 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         growth=_number(m, "mesh", "growth", 1.0, 1.5, default=d.growth),
         max_temperature_step_k=_number(m, "mesh", "max_temperature_step_k", 0.1, 100.0, default=d.max_temperature_step_k),
         max_fraction_step=_number(m, "mesh", "max_fraction_step", 0.001, 0.5, default=d.max_fraction_step),
+        max_relative_step=_number(m, "mesh", "max_relative_step", 0.001, 1.0, default=d.max_relative_step),
     )
     return Case(
         title=title, composition=composition, grade=grade, grain_size=grain, austenitize_c=aust, section=section,

@@ -116,3 +116,19 @@ def test_band_and_size_through_the_cli(cli, tmp_path):
     assert code == 2 and "min_hrc" in stderr
     code, _, stderr = cli("compare", p, "--out", tmp_path / "c2")
     assert code == 2 and "--medium" in stderr
+
+
+def test_size_through_the_cli(cli, tmp_path):
+    p = tmp_path / "pin.toml"
+    p.write_text(CASE)
+    code, stdout, stderr = cli("size", p, "--out", tmp_path / "size", "--json")
+    assert code == 0, stderr
+    answer = json.loads(stdout)
+    sev = answer["mildest_severity"]
+    assert sev["reachable"] and sev["next_milder_h_per_inch"] < sev["grossmann_h_per_inch"]
+    assert answer["largest_size"]["largest_passing_mm"] < answer["largest_size"]["next_larger_failing_mm"]
+    met = set(answer["quenchants_meeting"])
+    assert "water_20c_strong" in met and "air_20c_still" not in met     # severe meets it, still air does not
+    hs = [q["equivalent_h"] for q in answer["quenchants"] if q["equivalent_h"] is not None]
+    assert hs == sorted(hs)                                              # mildest first
+    assert (tmp_path / "size" / "sizing.json").is_file() and (tmp_path / "size" / "sizing.png").is_file()
