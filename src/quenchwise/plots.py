@@ -37,6 +37,24 @@ def _footer(fig, text: str) -> None:
     fig.text(0.01, 0.01, text, fontsize=6.5, color="#555555", ha="left", va="bottom", wrap=True)
 
 
+def add_hrc_scale(ax, label: str = "HRC (ASTM E140)"):
+    """A right-hand HRC scale matching the HV axis of ax (ticks at whole HRC, every 1, 2 or 5 so
+    that a handful show; none where the HV range is below HRC 20)."""
+    right = ax.twinx()
+    hv_lo, hv_hi = ax.get_ylim()
+    ticks = np.arange(20.0, 69.0, 1.0)
+    hv_ticks = hv_from_hrc(ticks)
+    inside = (hv_ticks >= hv_lo) & (hv_ticks <= hv_hi)
+    step = 1 if inside.sum() <= 10 else (2 if inside.sum() <= 20 else 5)
+    ticks, hv_ticks = ticks[::step], hv_ticks[::step]
+    keep = (hv_ticks >= hv_lo) & (hv_ticks <= hv_hi)
+    right.set_ylim(hv_lo, hv_hi)
+    right.set_yticks(hv_ticks[keep])
+    right.set_yticklabels([f"{t:.0f}" for t in ticks[keep]])
+    right.set_ylabel(label, color="#666666")
+    return right
+
+
 def hardness_figure(result, out_dir: Path) -> list[Path]:
     """Hardness vs depth below the quenched surface: HRC where the scale applies, HV always."""
     depth = result.depth_mm
@@ -54,18 +72,8 @@ def hardness_figure(result, out_dir: Path) -> list[Path]:
     ax.set_ylabel("Vickers hardness HV", color=INK)
     ax.grid(True, color="#e5e5e5", lw=0.6)
     ax.set_xlim(0, result.history.section.thickness_m * 1000.0)
-    right = ax.twinx()
-    hv_lo, hv_hi = ax.get_ylim()
-    ticks = np.arange(20.0, 69.0, 1.0)
-    hv_ticks = hv_from_hrc(ticks)
-    inside = (hv_ticks >= hv_lo) & (hv_ticks <= hv_hi)
-    step = 1 if inside.sum() <= 10 else (2 if inside.sum() <= 20 else 5)
-    ticks, hv_ticks = ticks[::step], hv_ticks[::step]
-    keep = (hv_ticks >= hv_lo) & (hv_ticks <= hv_hi)
-    right.set_ylim(hv_lo, hv_hi)
-    right.set_yticks(hv_ticks[keep])
-    right.set_yticklabels([f"{t:.0f}" for t, k in zip(ticks, keep) if k])
-    right.set_ylabel("HRC (ASTM E140)", color="#666666")
+    add_hrc_scale(ax)
+    hv_hi = ax.get_ylim()[1]
     for (label, r), colour in zip(result.points(), POINT_COLOURS):
         d = (result.history.section.outer_m - r) * 1000.0
         ax.axvline(d, color=colour, lw=0.8, ls=":")

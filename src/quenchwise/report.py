@@ -19,6 +19,7 @@ from matplotlib.patches import Circle, Rectangle, Wedge  # noqa: E402
 from . import __version__  # noqa: E402
 from .cautions import CAUTION  # noqa: E402
 from .hardness import hrc_from_hv, hv_from_hrc  # noqa: E402
+from .plots import add_hrc_scale  # noqa: E402
 from .workflows.requirement import (  # noqa: E402
     effective_depth_mm,
     final_hv,
@@ -40,6 +41,11 @@ def sheet_depths(total_mm: float) -> list[float]:
     """
     out = [d for d in STANDARD_DEPTHS_MM if d < total_mm - 1e-9]
     return out + [round(total_mm, 3)]
+
+
+def _severity_text(result) -> str:
+    h = result.extra.get("equivalent_h", {}).get("outer")
+    return "" if h is None else f" (equivalent H {h:.2f} 1/in)"
 
 
 def sheet_rows(result) -> list[dict]:
@@ -120,7 +126,8 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet") -> list[Path]:
         ("Chemistry, wt%", chem),
         ("Austenitize", f"{case.austenitize_c:g} C   (Ae1 {st.ae1:.0f} C, {'Acm' if st.hypereutectoid else 'Ae3'} {st.upper_critical:.0f} C;"
                         f" austenite {st.carbon:.2f} %C)"),
-        ("Quench", f"{case.outer.name} at {case.outer.bath_c:g} C" + (f"; bore {case.inner.name}" if case.inner else "")),
+        ("Quench", f"{case.outer.name} at {case.outer.bath_c:g} C" + _severity_text(result)
+                   + (f"; bore {case.inner.name}" if case.inner else "")),
         ("Quench ends", f"hottest point below {case.end_c:g} C after {result.history.time_s[-1]:.0f} s"),
         ("Temper", "none (as quenched)" if case.temper is None else f"{case.temper.temperature_c:g} C for {case.temper.hours:g} h"),
     ]
@@ -149,15 +156,7 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet") -> list[Path]:
     ax.set_ylabel("HV")
     ax.grid(True, color="#e6e6e6", lw=0.6)
     ax.legend(frameon=False, fontsize=7.5, loc="lower left")
-    right = ax.twinx()
-    lo, hi = ax.get_ylim()
-    right.set_ylim(lo, hi)
-    ticks = np.arange(20.0, 69.0, 5.0)
-    pos = hv_from_hrc(ticks)
-    keep = (pos >= lo) & (pos <= hi)
-    right.set_yticks(pos[keep])
-    right.set_yticklabels([f"{t:.0f}" for t in ticks[keep]])
-    right.set_ylabel("HRC")
+    add_hrc_scale(ax, "HRC")
 
     rows = sheet_rows(result)
     table_ax = fig.add_axes([0.06, 0.16, 0.55, 0.22])
