@@ -164,6 +164,8 @@ class PhaseStepper:
         self.t_min = np.asarray(initial_c, dtype=float).copy()
         self.rate_700_c_s = np.full(n, np.nan)
         self._first_rate = np.full(n, np.nan)
+        self._prev_mid = np.full(n, np.nan)        # mid temperature and secant rate of the last step
+        self._prev_rate = np.full(n, np.nan)
 
     def fractions(self) -> dict[str, np.ndarray]:
         return self.f
@@ -254,12 +256,24 @@ class PhaseStepper:
         f["austenite"] = np.clip(1.0 - solid, 0.0, 1.0)
 
     def _record_rate(self, t_old, t_new, dt) -> None:
+        """The cooling rate at 700 C: each step's secant rate belongs to its mid temperature, and
+        the rate at 700 C is interpolated between the two step midpoints that bracket it (a step's
+        secant alone would jitter from node to node with where 700 C falls inside the step)."""
+        dt = np.broadcast_to(np.asarray(dt, dtype=float), t_new.shape)
+        valid = dt > 0
         with np.errstate(divide="ignore", invalid="ignore"):
-            rate = np.where(dt > 0, (t_old - t_new) / dt, np.nan)
-        first = np.isnan(self._first_rate) & (dt > 0)
+            rate = np.where(valid, (t_old - t_new) / np.where(valid, dt, 1.0), np.nan)
+        mid = 0.5 * (t_old + t_new)
+        first = np.isnan(self._first_rate) & valid
         self._first_rate[first] = rate[first]
-        cross = np.isnan(self.rate_700_c_s) & (t_old > RATE_TEMPERATURE_C) & (t_new <= RATE_TEMPERATURE_C)
-        self.rate_700_c_s[cross] = rate[cross]
+        cross = valid & np.isnan(self.rate_700_c_s) & (mid <= RATE_TEMPERATURE_C)
+        bracketed = cross & (self._prev_mid > RATE_TEMPERATURE_C)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            w = (self._prev_mid - RATE_TEMPERATURE_C) / (self._prev_mid - mid)
+            self.rate_700_c_s = np.where(bracketed, self._prev_rate + w * (rate - self._prev_rate),
+                                         np.where(cross, rate, self.rate_700_c_s))
+        self._prev_mid = np.where(valid, mid, self._prev_mid)
+        self._prev_rate = np.where(valid, rate, self._prev_rate)
 
     def cooling_rate_700(self) -> np.ndarray:
         """Cooling rate as each node passed 700 C [K/s]; nodes that started below 700 C give their
