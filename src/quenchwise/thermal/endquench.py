@@ -42,6 +42,7 @@ from scipy.optimize import brentq
 
 from .properties import DENSITY_KG_M3, ConstantOverrides, PropertyTables, group_weights
 from .quenchants import Quenchant
+from .stepping import step_factor
 from .solver import SolverError
 
 #: ASTM A255 reading depth: hardness is read on two flats ground 0.015 in (0.38 mm) deep along
@@ -396,10 +397,7 @@ class EndQuenchSolver:
                 temps[bb].append(temperature[a:a + self.cells_per_bar].copy())
             d_t = np.maximum.reduceat(d_temp, self.starts)
             d_f = np.maximum.reduceat(change, self.starts)
-            with np.errstate(divide="ignore"):
-                factor = np.minimum(s.max_temperature_step_k / d_t, s.max_fraction_step / d_f)
-            factor = np.clip(0.9 * factor, 0.3, s.max_step_growth)
-            dt_bar = np.where(active, dt_bar * factor, dt_bar)
+            dt_bar = np.where(active, dt_bar * step_factor(s, d_t, d_f), dt_bar)
             finished = active & (hottest < self.end_c)
             stuck = active & ~finished & ((steps >= s.max_steps) | (t_bar >= s.max_time_s))
             if stuck.any():

@@ -86,6 +86,7 @@ from scipy.linalg import solve_banded
 from .geometry import Section
 from .properties import DENSITY_KG_M3, ConstantOverrides, PropertyTables, group_weights
 from .quenchants import STEFAN_BOLTZMANN, Quenchant
+from .stepping import step_factor
 
 
 #: Numerical guards checked at every step (see BatchSolver._guard).
@@ -480,11 +481,7 @@ class BatchSolver:
             d_t_case = np.maximum.reduceat(d_temp, self.starts)
             d_f_case = np.maximum.reduceat(change, self.starts)
             d_r_case = np.maximum.reduceat(d_temp / np.maximum(np.abs(previous_t - self.bath_of_node), 1.0), self.starts)
-            with np.errstate(divide="ignore"):
-                factor = np.minimum(np.minimum(s.max_temperature_step_k / d_t_case, s.max_fraction_step / d_f_case),
-                                    s.max_relative_step / d_r_case)
-            factor = np.clip(0.9 * factor, 0.3, s.max_step_growth)
-            dt_case = np.where(active, dt_case * factor, dt_case)
+            dt_case = np.where(active, dt_case * step_factor(s, d_t_case, d_f_case, d_r_case), dt_case)
             finished = active & (hottest < self.end_c)
             stuck = active & ~finished & ((steps >= s.max_steps) | (t_case >= s.max_time_s))
             if stuck.any():
