@@ -3,6 +3,7 @@
     python benchmarks/run_all.py                 # every benchmark, 3 repeats
     python benchmarks/run_all.py --only single_bar batch_200 --repeat 5
     python benchmarks/run_all.py --markdown      # also print the figures as a Markdown table
+    python benchmarks/run_all.py --table benchmarks/latest.md   # and write that table to a file
     python benchmarks/run_all.py --profile       # cProfile of one 200-case batch solve
 
 Each benchmark is a function registered with @benchmark(name); it receives the shared context
@@ -320,6 +321,8 @@ def main(argv=None):
     parser.add_argument("--only", nargs="*", choices=list(BENCHMARKS), help="benchmarks to run (default: all)")
     parser.add_argument("--repeat", type=int, default=3, help="timed runs per figure; the best is reported")
     parser.add_argument("--markdown", action="store_true", help="print a Markdown table as well")
+    parser.add_argument("--table", type=Path, default=None,
+                        help="also write the Markdown table, with the machine and command, to this file")
     parser.add_argument("--profile", action="store_true",
                         help="instead: cProfile one solve of the 200-case batch, with the shares of its parts")
     args = parser.parse_args(argv)
@@ -327,7 +330,8 @@ def main(argv=None):
         return profile_batch()
     names = args.only or list(BENCHMARKS)
     print("\n".join(machine()))
-    print("command: python " + " ".join([Path(sys.argv[0]).as_posix()] + (argv if argv is not None else sys.argv[1:])))
+    command = "python " + " ".join([Path(sys.argv[0]).as_posix()] + (argv if argv is not None else sys.argv[1:]))
+    print("command: " + command)
     warm_up()
     ctx, rows = {}, []
     for name in names:
@@ -338,10 +342,15 @@ def main(argv=None):
             verdict = "" if target is None else ("  target <= %s: %s" % (fmt(target), "met" if value <= target else "MISSED"))
             print(f"{label:70s} {fmt(value):>14s} {unit:3s}{verdict}")
         print(f"[{name}: {time.perf_counter() - t0:.1f} s]")
+    table = ["| figure | value | unit | target |", "| --- | ---: | --- | --- |"]
+    table += [f"| {label} | {fmt(value)} | {unit} | {'' if target is None else '<= ' + fmt(target)} |"
+              for label, value, unit, target in rows]
     if args.markdown:
-        print("\n| figure | value | unit | target |\n| --- | ---: | --- | --- |")
-        for label, value, unit, target in rows:
-            print(f"| {label} | {fmt(value)} | {unit} | {'' if target is None else '<= ' + fmt(target)} |")
+        print("\n" + "\n".join(table))
+    if args.table is not None:
+        header = [f"- {line}" for line in machine()] + [f"- command: {command}", ""]
+        args.table.write_text("\n".join(header + table) + "\n", encoding="utf-8")
+        print(f"wrote {args.table}")
     return 0
 
 
