@@ -108,3 +108,13 @@ def test_curves_that_cannot_be_rated_get_a_note_not_an_error():
     s_dead, s_fast = severity.equivalent_severities([dead, weak], sweep_h=np.geomspace(0.1, 1.0, 6))
     assert np.isnan(s_dead.grossmann_h) and "below" in s_dead.note
     assert np.isnan(s_fast.grossmann_h) and "faster than the sweep" in s_fast.note
+
+
+def test_listed_severity_of_every_builtin_matches_the_computed_one(library):
+    # Each built-in CSV lists its equivalent H ('# equivalent_h:') so that a run need not solve the
+    # severity sweep again; this keeps the listed numbers honest (0.5 %: the sweep's interpolation).
+    for q in builtin_quenchants():
+        assert q.listed_grossmann_h is not None, q.name
+        assert q.listed_grossmann_h == pytest.approx(library[q.name].grossmann_h, rel=0.005), q.name
+    moved = load_quenchant("water_20c_still").at_bath(35.0)
+    assert moved.listed_grossmann_h is None          # another bath: computed, never the listed value

@@ -43,6 +43,7 @@ import csv
 import difflib
 import io
 import math
+import re
 from dataclasses import dataclass, field, replace
 from importlib import resources
 from pathlib import Path
@@ -106,6 +107,10 @@ class Quenchant:
     flash_point_c: float | None = None
     source: str = ""
     description: str = ""
+    #: Equivalent Grossmann H [1/inch] listed with a built-in curve at its own bath (the
+    #: '# equivalent_h:' line; tests/validation/test_quench_severity.py recomputes every one), so a
+    #: run need not solve the severity sweep again. None for user curves and other baths.
+    listed_grossmann_h: float | None = None
 
     def htc(self, surface_c):
         """h at the given surface temperatures [W/(m2 K)], table held constant beyond its ends."""
@@ -115,7 +120,9 @@ class Quenchant:
         return h
 
     def at_bath(self, bath_c: float) -> "Quenchant":
-        return replace(self, bath_c=float(bath_c))
+        """The same curve in a bath at another temperature (its listed H holds only at its own bath)."""
+        listed = self.listed_grossmann_h if float(bath_c) == self.bath_c else None
+        return replace(self, bath_c=float(bath_c), listed_grossmann_h=listed)
 
     @classmethod
     def constant(cls, htc_w_m2k: float, bath_c: float, name: str | None = None) -> "Quenchant":
@@ -225,7 +232,9 @@ def load_quenchant(name_or_path: str, base_dir: Path | None = None, key: str = "
     """A built-in curve by name, or a user CSV by path (relative paths from base_dir)."""
     if name_or_path in builtin_names():
         text = (resources.files("quenchwise.thermal") / "quenchants" / f"{name_or_path}.csv").read_text("utf-8")
-        return _parse(text, name_or_path, key)
+        curve = _parse(text, name_or_path, key)
+        listed = re.search(r"^#\s*equivalent_h:\s*([0-9.]+)", text, re.MULTILINE)
+        return replace(curve, listed_grossmann_h=float(listed.group(1))) if listed else curve
     path = Path(name_or_path)
     if base_dir is not None and not path.is_absolute():
         path = base_dir / path
