@@ -161,3 +161,28 @@ def equivalent_severity(quenchant: Quenchant) -> Severity:
 def equivalent_grossmann_h(quenchants: list[Quenchant]) -> list[float]:
     """Equivalent Grossmann H [1/inch] of each curve, in order (nan where it cannot be computed)."""
     return [s.grossmann_h for s in equivalent_severities(list(quenchants))]
+
+
+def grossmann_h_values(quenchants: list) -> list[float | None]:
+    """Equivalent Grossmann H [1/inch] of each quenchant (None entries pass through, and None where
+    no number can be given): constants exactly (H = h / 2k), built-in curves at their own bath
+    from their listed value, every other curve computed, all of those in one batch.
+
+    >>> grossmann_h_values([Quenchant.constant(float(htc_from_grossmann(0.5)), 40.0), None])
+    [0.5, None]
+    """
+    todo = [q for q in quenchants if q is not None and q.kind != "constant" and q.listed_grossmann_h is None]
+    found = {id(q): s.grossmann_h for q, s in zip(todo, equivalent_severities(todo))} if todo else {}
+    out = []
+    for q in quenchants:
+        if q is None:
+            out.append(None)
+            continue
+        if q.kind == "constant":
+            h = float(grossmann_from_htc(q.htc_w_m2k[0]))
+        elif q.listed_grossmann_h is not None:
+            h = q.listed_grossmann_h
+        else:
+            h = found[id(q)]
+        out.append(float(h) if np.isfinite(h) else None)
+    return out

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 from typing import Callable
 
@@ -33,12 +32,10 @@ def crack_risk(carbon: float, severity_h: float | None) -> str:
 
 
 def equivalent_severity(media: list[Quenchant]) -> list[float | None]:
-    """Equivalent Grossmann H of each medium (thermal.severity), None if it cannot be computed."""
-    try:
-        from ..thermal.severity import equivalent_grossmann_h
-    except ImportError:  # severity module not present in this build
-        return [None] * len(media)
-    return [float(h) for h in equivalent_grossmann_h(media)]
+    """Equivalent Grossmann H of each medium, None where it cannot be given (thermal.severity)."""
+    from ..thermal.severity import grossmann_h_values
+
+    return grossmann_h_values(media)
 
 
 @dataclass
@@ -61,7 +58,6 @@ def compare(case: Case, media: list[Quenchant], progress: Callable[[float], None
     severity = equivalent_severity(media)
     rows = []
     for medium, res, h in zip(media, results, severity):
-        h = None if h is None or not math.isfinite(h) else h
         pts = res.summary()["points"]
         limit = limit_hardness_hrc(res)
         rows.append({

@@ -116,31 +116,12 @@ def simulate_case(case: Case, progress: Callable[[float], None] | None = None) -
 
 def attach_equivalent_severity(results: list[Result]) -> None:
     """Put the equivalent Grossmann H of each result's quenchants into result.extra
-    ("equivalent_h": {"outer": H, "inner": H}); constants exactly, curves in one severity batch
-    (thermal.severity; about a second for the sweep), built-in curves at their own bath from the
-    value listed with the curve."""
-    from ..thermal.quenchants import grossmann_from_htc
-    from ..thermal.severity import equivalent_severities
+    ("equivalent_h": {"outer": H, "inner": H}; thermal.severity.grossmann_h_values)."""
+    from ..thermal.severity import grossmann_h_values
 
-    curves: dict[int, object] = {}
-    for r in results:
-        for q in (r.case.outer, r.case.inner):
-            if q is not None and q.kind != "constant" and q.listed_grossmann_h is None:
-                curves[id(q)] = q
-    found = dict(zip(curves, equivalent_severities(list(curves.values())))) if curves else {}
-
-    def value(q):
-        if q is None:
-            return None
-        if q.kind == "constant":
-            return float(grossmann_from_htc(q.htc_w_m2k[0]))
-        if q.listed_grossmann_h is not None:   # built-in curve at its own bath (value tested)
-            return q.listed_grossmann_h
-        h = found[id(q)].grossmann_h
-        return float(h) if np.isfinite(h) else None
-
-    for r in results:
-        r.extra["equivalent_h"] = {"outer": value(r.case.outer), "inner": value(r.case.inner)}
+    values = grossmann_h_values([q for r in results for q in (r.case.outer, r.case.inner)])
+    for i, r in enumerate(results):
+        r.extra["equivalent_h"] = {"outer": values[2 * i], "inner": values[2 * i + 1]}
 
 
 def _rate_700(history) -> np.ndarray:
