@@ -42,7 +42,7 @@ from scipy.optimize import brentq
 
 from .properties import DENSITY_KG_M3, ConstantOverrides, PropertyTables, group_weights
 from .quenchants import Quenchant
-from .stepping import step_factor
+from .stepping import close_step, step_factor
 from .solver import SolverError
 
 #: ASTM A255 reading depth: hardness is read on two flats ground 0.015 in (0.38 mm) deep along
@@ -398,17 +398,10 @@ class EndQuenchSolver:
             d_t = np.maximum.reduceat(d_temp, self.starts)
             d_f = np.maximum.reduceat(change, self.starts)
             dt_bar = np.where(active, dt_bar * step_factor(s, d_t, d_f), dt_bar)
-            finished = active & (hottest < self.end_c)
-            stuck = active & ~finished & ((steps >= s.max_steps) | (t_bar >= s.max_time_s))
-            if stuck.any():
-                bb = int(np.flatnonzero(stuck)[0])
-                raise SolverError(
-                    f"specimen {self.bars[bb].name!r}: not below {self.end_c[bb]:g} C after {steps[bb]} steps, "
-                    f"t = {t_bar[bb]:.4g} s (hottest cell {hottest[bb]:.1f} C)")
-            active &= ~finished
-            if progress is not None:
-                done = np.clip((self.initial[self.starts] - hottest) / start_span, 0.0, 1.0)
-                progress(float(np.mean(np.where(active, done, 1.0))))
+            active = close_step(
+                active, hottest, self.end_c, steps, t_bar, s, self.initial[self.starts], start_span, progress,
+                lambda b: (f"specimen {self.bars[b].name!r}: not below {self.end_c[b]:g} C after {steps[b]} steps, "
+                           f"t = {t_bar[b]:.4g} s (hottest cell {hottest[b]:.1f} C)"))
 
         heat_out = np.bincount(self.sf_bar, heat_face, minlength=nb)
         return [

@@ -86,7 +86,7 @@ from scipy.linalg import solve_banded
 from .geometry import Section
 from .properties import DENSITY_KG_M3, ConstantOverrides, PropertyTables, group_weights
 from .quenchants import STEFAN_BOLTZMANN, Quenchant
-from .stepping import step_factor
+from .stepping import close_step, step_factor
 
 
 #: Numerical guards checked at every step (see BatchSolver._guard).
@@ -482,17 +482,10 @@ class BatchSolver:
             d_f_case = np.maximum.reduceat(change, self.starts)
             d_r_case = np.maximum.reduceat(d_temp / np.maximum(np.abs(previous_t - self.bath_of_node), 1.0), self.starts)
             dt_case = np.where(active, dt_case * step_factor(s, d_t_case, d_f_case, d_r_case), dt_case)
-            finished = active & (hottest < self.end_c)
-            stuck = active & ~finished & ((steps >= s.max_steps) | (t_case >= s.max_time_s))
-            if stuck.any():
-                i = int(np.flatnonzero(stuck)[0])
-                raise SolverError(
-                    f"case {self.cases[i].name!r}: not below end_c = {self.end_c[i]:g} C after {steps[i]} steps, "
-                    f"t = {t_case[i]:.4g} s (hottest node {hottest[i]:.1f} C); check the quench and end_c")
-            active &= ~finished
-            if progress is not None:
-                done = np.clip((self.initial[self.starts] - hottest) / start_span, 0.0, 1.0)
-                progress(float(np.mean(np.where(active, done, 1.0))))
+            active = close_step(
+                active, hottest, self.end_c, steps, t_case, s, self.initial[self.starts], start_span, progress,
+                lambda i: (f"case {self.cases[i].name!r}: not below end_c = {self.end_c[i]:g} C after {steps[i]} steps, "
+                           f"t = {t_case[i]:.4g} s (hottest node {hottest[i]:.1f} C); check the quench and end_c"))
 
         heat_outer = np.bincount(sf.case[sf.outer], heat_surface[sf.outer], minlength=n_cases)
         heat_inner = np.bincount(sf.case[~sf.outer], heat_surface[~sf.outer], minlength=n_cases)

@@ -24,3 +24,24 @@ def step_factor(settings, largest_temperature_change, largest_fraction_change, l
         if largest_relative_change is not None:
             factor = np.minimum(factor, settings.max_relative_step / largest_relative_change)
     return np.clip(0.9 * factor, 0.3, settings.max_step_growth)
+
+
+def close_step(active, hottest, end_c, steps, time_s, settings, start_hottest, start_span, progress, stuck_message):
+    """End-of-step bookkeeping shared by the solvers: which cases are still running.
+
+    A case finishes when its hottest point is below its end temperature. One that has neither
+    finished nor stays within settings.max_steps and settings.max_time_s stops the solve with a
+    SolverError whose text stuck_message(index) gives. progress (if given) gets the mean share of
+    the cooling done.
+    """
+    from .solver import SolverError
+
+    finished = active & (hottest < end_c)
+    stuck = active & ~finished & ((steps >= settings.max_steps) | (time_s >= settings.max_time_s))
+    if stuck.any():
+        raise SolverError(stuck_message(int(np.flatnonzero(stuck)[0])))
+    still = active & ~finished
+    if progress is not None:
+        done = np.clip((start_hottest - hottest) / start_span, 0.0, 1.0)
+        progress(float(np.mean(np.where(still, done, 1.0))))
+    return still
