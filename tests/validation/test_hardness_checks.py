@@ -180,3 +180,13 @@ def test_high_carbon_martensite_levels_off_near_65_hrc():
     for chem in (dict(c=0.77, mn=0.75, si=0.2), dict(c=1.0, mn=0.35, si=0.25, cr=1.45)):
         hv = hardness_hv({"martensite": np.array([1.0])}, np.array([150.0]), chem)
         assert 62.0 <= float(hrc_from_hv(hv)[0]) <= 68.0, chem
+
+
+def test_mixture_is_finite_where_an_absent_phase_has_no_meaningful_hardness():
+    # Maynier's bainite relation is negative for a plain low-carbon steel cooled in a furnace, where
+    # no bainite forms; the mixture of the phases present must not turn NaN because of it.
+    chem = dict(c=0.2, mn=0.45, si=0.25)
+    rate = np.array([0.003])
+    assert phase_hardness_hv(rate, chem)["bainite"][0] < 0.0
+    f = {"ferrite": np.array([0.75]), "pearlite": np.array([0.25]), "bainite": np.array([0.0])}
+    assert np.isfinite(hardness_hv(f, rate, chem)).all()

@@ -227,6 +227,8 @@ def mixture_hv(weights, values, rule: str = "logarithmic"):
     400
     >>> round(float(mixture_hv([0.5, 0.5], [800.0, 200.0], rule="linear")))
     500
+    >>> round(float(mixture_hv([1.0, 0.0], [200.0, -50.0])))   # an absent phase never matters
+    200
     """
     if rule not in MIXTURE_RULES:
         raise ValueError(f"rule = {rule!r}; allowed: {', '.join(MIXTURE_RULES)}")
@@ -236,7 +238,11 @@ def mixture_hv(weights, values, rule: str = "logarithmic"):
     safe = np.where(total > 0, total, np.nan)
     if rule == "linear":
         return sum(wi * hi for wi, hi in zip(w, h)) / safe
-    return np.exp(sum(wi * np.log(hi) for wi, hi in zip(w, h)) / safe)
+    # A phase that is absent contributes nothing even where its relation has no meaning (Maynier's
+    # bainite goes negative at furnace rates, where no bainite forms); present phases are floored
+    # at 1 HV so the logarithm is defined.
+    terms = [np.where(wi > 0, wi * np.log(np.maximum(hi, 1.0)), 0.0) for wi, hi in zip(w, h)]
+    return np.exp(sum(terms) / safe)
 
 
 def hardness_hv(fractions: dict, rate_700_c_s, chem: dict, undissolved_cementite=0.0,
