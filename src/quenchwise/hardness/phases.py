@@ -179,8 +179,8 @@ def ferrite_pearlite_hv(rate_c_h, c, si=0.0, mn=0.0, ni=0.0, cr=0.0, mo=0.0, v=0
 
 
 #: The per-phase relations and the mixture rule used by default, named in every summary.
-HARDNESS_METHOD = ("Maynier, Jungmann & Dollet (1978) martensite and bainite; ferrite-pearlite with a "
-                   "pearlite cooling-rate correction; logarithmic mixture")
+HARDNESS_METHOD = ("Maynier, Jungmann & Dollet (1978) martensite, bainite, ferrite-pearlite + pearlite rate "
+                   "correction; logarithmic mixture")
 RELATIONS = ("corrected", "maynier1978")
 MIXTURE_RULES = ("logarithmic", "linear")
 

@@ -131,7 +131,7 @@ def ms_andrews_joined(c, mn=0.0, ni=0.0, cr=0.0, mo=0.0):
 
 #: The Ms used throughout (kinetics, retained austenite, diagrams) and its name in the output.
 martensite_start = ms_andrews_joined
-MS_METHOD = "Andrews (1965) product Ms, above 0.6 %C van Bohemen (2012) carbon term"
+MS_METHOD = "Andrews (1965) product Ms (above 0.6 %C: van Bohemen (2012) carbon term)"
 #: Names of the other default critical-temperature methods, shown in every summary.
 AE_METHOD = "Andrews (1965) Ae1/Ae3"
 ACM_METHOD = "straight Fe-C Acm (no alloy correction)"
