@@ -111,6 +111,9 @@ class Quenchant:
     #: '# equivalent_h:' line; tests/validation/test_quench_severity.py recomputes every one), so a
     #: run need not solve the severity sweep again. None for user curves and other baths.
     listed_grossmann_h: float | None = None
+    #: ISO 9950 probe figures listed with a built-in curve at its own bath ('# probe_<figure>:'
+    #: lines, thermal.probe.FIGURE_NAMES; tests/thermal/test_quenchant_model.py recomputes them).
+    listed_probe: dict | None = None
 
     def htc(self, surface_c):
         """h at the given surface temperatures [W/(m2 K)], table held constant beyond its ends."""
@@ -121,8 +124,9 @@ class Quenchant:
 
     def at_bath(self, bath_c: float) -> "Quenchant":
         """The same curve in a bath at another temperature (its listed H holds only at its own bath)."""
-        listed = self.listed_grossmann_h if float(bath_c) == self.bath_c else None
-        return replace(self, bath_c=float(bath_c), listed_grossmann_h=listed)
+        same = float(bath_c) == self.bath_c
+        return replace(self, bath_c=float(bath_c), listed_grossmann_h=self.listed_grossmann_h if same else None,
+                       listed_probe=self.listed_probe if same else None)
 
     @classmethod
     def constant(cls, htc_w_m2k: float, bath_c: float, name: str | None = None) -> "Quenchant":
@@ -234,7 +238,9 @@ def load_quenchant(name_or_path: str, base_dir: Path | None = None, key: str = "
         text = (resources.files("quenchwise.thermal") / "quenchants" / f"{name_or_path}.csv").read_text("utf-8")
         curve = _parse(text, name_or_path, key)
         listed = re.search(r"^#\s*equivalent_h:\s*([0-9.]+)", text, re.MULTILINE)
-        return replace(curve, listed_grossmann_h=float(listed.group(1))) if listed else curve
+        probe = {m.group(1): float(m.group(2))
+                 for m in re.finditer(r"^#\s*probe_(\w+):\s*([-0-9.eE+a-z]+)\s*$", text, re.MULTILINE)}
+        return replace(curve, listed_grossmann_h=float(listed.group(1)) if listed else None, listed_probe=probe or None)
     path = Path(name_or_path)
     if base_dir is not None and not path.is_absolute():
         path = base_dir / path
