@@ -673,7 +673,7 @@ def cooling_curve_figures(time_s, centre_c) -> dict:
 
     >>> t = np.linspace(0.0, 100.0, 10001); y = 20.0 + 830.0 * np.exp(-t / 10.0)
     >>> f = cooling_curve_figures(t, y); round(f["max_rate_k_s"], 1), round(f["time_400_s"], 2)
-    (83.0, 6.13)
+    (83.0, 7.81)
     """
     t = np.asarray(time_s, dtype=float)
     y = np.asarray(centre_c, dtype=float)

@@ -9,12 +9,11 @@ The stages (DOMAIN.md section 3; ASTM D6200 / ISO 9950 describe them as A, B and
   boiling point of the liquid;
 - convection to the bath: h_convection, the floor reached near the bath.
 
-    B(T) = h_conv + (h_peak - h_conv) * (1 if T >= T_peak' else exp(-((T - T_peak') / w_peak)^2 / 2))
     s(T) = smoothstep((T_collapse - T) / TRANSITION_K)           (0 in the blanket, 1 below it)
-    h(T) = (1 - s) h_vapour + s B(T),   T_peak' = min(T_peak, T_collapse_still - TRANSITION_K)
+    h(T) = (1 - s) h_vapour + s B(T)
 
-(T_collapse_still: the collapse temperature of the same fluid without agitation, so that the
-peak position never moves with agitation and h rises with flow velocity at every temperature.)
+with B(T) = h_conv + (h_peak - h_conv) (1 above T_peak, exp(-((T - T_peak) / w_peak)^2 / 2) below).
+Every parameter rises with flow velocity, so h rises with agitation at every temperature.
 
 Each class (water, brine, conventional / fast / hot oil, polymer solution) has reference values
 at a reference bath, still, and smooth rules for bath temperature, agitation velocity v [m/s]
@@ -90,10 +89,10 @@ _CLASSES = {
     "water": dict(ref_bath=20.0, stages=Stages(450.0, 640.0, 12000.0, 420.0, 170.0, 900.0),
                   collapse_per_m_s=260.0, collapse_per_k=-3.5, peak_per_m_s=0.45, conv_per_m_s=2.0,
                   vap_per_m_s=1.2, peak_per_k=-0.006),
-    "brine": dict(ref_bath=20.0, stages=Stages(1500.0, 900.0, 20000.0, 520.0, 220.0, 1100.0),
+    "brine": dict(ref_bath=20.0, stages=Stages(1500.0, 900.0, 20000.0, 480.0, 220.0, 1100.0),
                   collapse_per_m_s=100.0, collapse_per_k=-1.5, peak_per_m_s=0.35, conv_per_m_s=2.0,
                   vap_per_m_s=1.0, peak_per_k=-0.004),
-    "oil_conventional": dict(ref_bath=60.0, stages=Stages(420.0, 600.0, 2700.0, 530.0, 110.0, 200.0),
+    "oil_conventional": dict(ref_bath=60.0, stages=Stages(650.0, 610.0, 2600.0, 530.0, 110.0, 200.0),
                              collapse_per_m_s=120.0, collapse_per_k=0.3, peak_per_m_s=0.55, conv_per_m_s=1.6,
                              vap_per_m_s=1.0, peak_per_k=0.0),
     "oil_fast": dict(ref_bath=60.0, stages=Stages(600.0, 720.0, 3500.0, 600.0, 160.0, 300.0),
@@ -105,11 +104,13 @@ _CLASSES = {
 }
 #: Polymer solution (PAG type) at 40 C: water's stages at that bath, then per % of polymer the
 #: collapse falls by POLY_COLLAPSE_PER_PCT and the peak and blanket h shrink (film of polymer).
-POLY_COLLAPSE_PER_PCT = -6.0
-POLY_PEAK_PER_PCT = -0.018
+POLY_COLLAPSE_PER_PCT = -3.0
+POLY_PEAK_PER_PCT = -0.022
 POLY_VAPOUR_PER_PCT = -0.01
 #: Agitation breaks a polymer film more than a steam blanket (more rise of T_collapse per m/s).
 POLY_COLLAPSE_PER_M_S = 300.0
+#: Boiling peak position of polymer solutions [C]: between water and the oils (DOMAIN.md section 3).
+POLY_PEAK_C = 470.0
 
 
 def agitation_velocity(value, key: str = "quench.agitation") -> float:
@@ -179,7 +180,7 @@ def stages_of(spec: QuenchSpec) -> tuple[Stages, float]:
 
     >>> s, _ = stages_of(QuenchSpec("oil_conventional", 60.0, 0.5))
     >>> round(s.t_collapse_c), round(s.h_peak)
-    (660, 3315)
+    (670, 3315)
     """
     if spec.kind == "polymer":
         water, water_still = _class_stages("water", spec.bath_c, 0.0)
@@ -190,29 +191,27 @@ def stages_of(spec: QuenchSpec) -> tuple[Stages, float]:
         stages = Stages(water.h_vapour * max(0.3, 1.0 + POLY_VAPOUR_PER_PCT * c) * (1.0 + cw["vap_per_m_s"] * v),
                         still_collapse + POLY_COLLAPSE_PER_M_S * v,
                         water.h_peak * max(0.2, 1.0 + POLY_PEAK_PER_PCT * c) * (1.0 + cw["peak_per_m_s"] * v),
-                        water.t_peak_c, water.w_peak_k, water.h_convection * (1.0 + cw["conv_per_m_s"] * v))
+                        POLY_PEAK_C, water.w_peak_k, water.h_convection * (1.0 + cw["conv_per_m_s"] * v))
         return stages, still_collapse
     return _class_stages(spec.kind, spec.bath_c, spec.agitation_m_s)
 
 
 def three_stage_htc(surface_c, h_vapour, t_collapse_c, h_peak, t_peak_c, w_peak_k, h_convection,
-                    t_collapse_still_c=None, transition_k=TRANSITION_K):
+                    transition_k=TRANSITION_K):
     """Heat-transfer coefficient [W/(m2 K)] of the three-stage model at surface temperatures [C].
 
     h = (1 - s) h_vapour + s B(T): s = smoothstep((T_collapse - T) / transition) is 0 in the
     vapour blanket and 1 below it; B(T) = h_conv + (h_peak - h_conv) g(T) with g = 1 above the
-    peak position T_peak' = min(T_peak, T_collapse_still - transition) and
-    exp(-((T - T_peak') / w_peak)^2 / 2) below it. Valid for any T; all h in W/(m2 K), T in C.
+    peak position T_peak and exp(-((T - T_peak) / w_peak)^2 / 2) below it (a blanket that
+    collapses below T_peak cuts the peak: the highest h is then right below the collapse). Valid for any T; all h in W/(m2 K), T in C.
     The model's own construction (module docstring), not a published correlation.
 
     >>> h = three_stage_htc(np.array([800.0, 500.0, 60.0]), 400.0, 600.0, 3000.0, 520.0, 150.0, 300.0)
     >>> [round(float(x)) for x in h]
-    [400, 2976, 300]
+    [400, 2976, 325]
     """
     t = np.asarray(surface_c, dtype=float)
-    collapse_still = t_collapse_c if t_collapse_still_c is None else t_collapse_still_c
-    peak_at = min(t_peak_c, collapse_still - transition_k)
-    g = np.where(t >= peak_at, 1.0, np.exp(-0.5 * ((t - peak_at) / w_peak_k) ** 2))
+    g = np.where(t >= t_peak_c, 1.0, np.exp(-0.5 * ((t - t_peak_c) / w_peak_k) ** 2))
     boiling = h_convection + (h_peak - h_convection) * g
     x = np.clip((t_collapse_c - t) / transition_k, 0.0, 1.0)
     s = x * x * (3.0 - 2.0 * x)
@@ -258,9 +257,9 @@ def model_quenchant(spec: QuenchSpec, name: str | None = None):
         return base.at_bath(spec.bath_c) if name is None else replace(base.at_bath(spec.bath_c), name=name)
     from .quenchants import Quenchant
 
-    stages, still_collapse = stages_of(spec)
+    stages, _ = stages_of(spec)
     t = _grid(spec.bath_c, stages.t_collapse_c)
-    h = three_stage_htc(t, *[getattr(stages, f) for f in Stages.__dataclass_fields__], t_collapse_still_c=still_collapse)
+    h = three_stage_htc(t, *[getattr(stages, f) for f in Stages.__dataclass_fields__])
     label = name or _default_name(spec)
     return Quenchant(label, float(spec.bath_c), t, np.round(h, 1), kind=_kind_label(spec.kind),
                      agitation=agitation_name(spec.agitation_m_s), flash_point_c=FLASH_POINT_C.get(spec.kind),
@@ -277,7 +276,8 @@ def model_source(spec: QuenchSpec, stages: Stages) -> str:
             "ASTM D6200 / D6482 type probe figures (quenchant_data/probe_targets.csv), not measured data: "
             f"vapour blanket h {stages.h_vapour:.0f} W/m2K down to {stages.t_collapse_c:.0f} C, boiling peak "
             f"{stages.h_peak:.0f} W/m2K from {stages.t_peak_c:.0f} C (width {stages.w_peak_k:.0f} K), convection "
-            f"{stages.h_convection:.0f} W/m2K")
+            f"{stages.h_convection:.0f} W/m2K" + ("; flash point illustrative (invented): use the open-cup flash point "
+                                                  "on your oil's data sheet" if spec.kind in FLASH_POINT_C else ""))
 
 
 #: The built-in presets: name -> spec (the 30 liquid names the library had, plus mild / violent
