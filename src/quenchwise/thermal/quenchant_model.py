@@ -107,6 +107,8 @@ _CLASSES = {
 POLY_COLLAPSE_PER_PCT = -3.0
 POLY_PEAK_PER_PCT = -0.022
 POLY_VAPOUR_PER_PCT = -0.01
+#: A viscous solution convects less than water (fractional change per % polymer).
+POLY_CONVECTION_PER_PCT = -0.015
 #: Agitation breaks a polymer film more than a steam blanket (more rise of T_collapse per m/s).
 POLY_COLLAPSE_PER_M_S = 300.0
 #: Boiling peak position of polymer solutions [C]: between water and the oils (DOMAIN.md section 3).
@@ -191,7 +193,8 @@ def stages_of(spec: QuenchSpec) -> tuple[Stages, float]:
         stages = Stages(water.h_vapour * max(0.3, 1.0 + POLY_VAPOUR_PER_PCT * c) * (1.0 + cw["vap_per_m_s"] * v),
                         still_collapse + POLY_COLLAPSE_PER_M_S * v,
                         water.h_peak * max(0.2, 1.0 + POLY_PEAK_PER_PCT * c) * (1.0 + cw["peak_per_m_s"] * v),
-                        POLY_PEAK_C, water.w_peak_k, water.h_convection * (1.0 + cw["conv_per_m_s"] * v))
+                        POLY_PEAK_C, water.w_peak_k,
+                        water.h_convection * max(0.3, 1.0 + POLY_CONVECTION_PER_PCT * c) * (1.0 + cw["conv_per_m_s"] * v))
         return stages, still_collapse
     return _class_stages(spec.kind, spec.bath_c, spec.agitation_m_s)
 
