@@ -354,3 +354,34 @@ def write_presets(folder=None) -> list[str]:
 
 if __name__ == "__main__":  # pragma: no cover - maintenance entry point
     print("\n".join(write_presets()))
+
+
+#: Default bath of each class when a case gives none [C] (the presets' baths).
+DEFAULT_BATH_C = {"water": 20.0, "brine": 20.0, "oil_conventional": 60.0, "oil_fast": 60.0, "oil_hot": 160.0,
+                  "polymer": 40.0, "air": 20.0, "gas": 20.0}
+#: [quench] keys of the model (besides bath_c): kind, agitation (level or m/s), concentration_pct.
+CASE_KEYS = ("kind", "agitation", "concentration_pct")
+
+
+def quenchant_from_case(q: dict, bath_c: float | None):
+    """The Quenchant of a case's [quench] table that names a class (kind = ...), e.g.
+    kind = "polymer", concentration_pct = 15, bath_c = 35, agitation = 0.6 (m/s) or "moderate".
+
+    >>> quenchant_from_case({"kind": "polymer", "concentration_pct": 15, "agitation": 0.6}, 35.0).description
+    'polymer solution (PAG type) 15 % at 35 C, flow 0.6 m/s'
+    """
+    kind = q.get("kind")
+    if not isinstance(kind, str) or kind not in KINDS:
+        raise InputError("quench.kind", kind, "one of " + ", ".join(KINDS))
+    for other in ("medium", "htc_w_m2k", "severity_h"):
+        if other in q:
+            raise InputError(f"quench.{other}", q[other], "not together with quench.kind (one way to name the quenchant)")
+    agitation = agitation_velocity(q.get("agitation", "still"), "quench.agitation")
+    conc = q.get("concentration_pct", 0.0)
+    if isinstance(conc, bool) or not isinstance(conc, (int, float)):
+        raise InputError("quench.concentration_pct", conc, "a number (% polymer) for kind polymer")
+    if kind == "polymer" and "concentration_pct" not in q:
+        raise InputError("quench.concentration_pct", "(missing)", "the polymer concentration in % for kind polymer "
+                         f"({POLYMER_RANGE_PCT[0]:g} to {POLYMER_RANGE_PCT[1]:g})")
+    spec = QuenchSpec(kind, DEFAULT_BATH_C[kind] if bath_c is None else float(bath_c), agitation, float(conc))
+    return model_quenchant(check_spec(spec))
