@@ -92,7 +92,7 @@ _CLASSES = {
     "brine": dict(ref_bath=20.0, stages=Stages(1500.0, 900.0, 20000.0, 480.0, 220.0, 1100.0),
                   collapse_per_m_s=100.0, collapse_per_k=-1.5, peak_per_m_s=0.35, conv_per_m_s=2.0,
                   vap_per_m_s=1.0, peak_per_k=-0.004),
-    "oil_conventional": dict(ref_bath=60.0, stages=Stages(650.0, 610.0, 2600.0, 530.0, 110.0, 200.0),
+    "oil_conventional": dict(ref_bath=60.0, stages=Stages(420.0, 600.0, 2700.0, 530.0, 110.0, 200.0),
                              collapse_per_m_s=120.0, collapse_per_k=0.3, peak_per_m_s=0.55, conv_per_m_s=1.6,
                              vap_per_m_s=1.0, peak_per_k=0.0),
     "oil_fast": dict(ref_bath=60.0, stages=Stages(600.0, 720.0, 3500.0, 600.0, 160.0, 300.0),
