@@ -43,7 +43,7 @@ def quenchant_figure(quenchant, severity, out_dir: Path, stem: str, probe=None) 
     ax.set_ylabel("heat-transfer coefficient h [W/(m2 K)]")
     ax.set_ylim(bottom=0)
     ax.grid(True, color=GRID, lw=0.6)
-    ax.legend(fontsize=7.5, frameon=False, loc="best")
+    ax.legend(fontsize=7.5, frameon=False, loc="best" if probe is None else "upper right")
     title = q.description or q.name
     if probe is None:
         ax.set_title(f"{q.name}: {title}" if q.description else title, fontsize=9, color=INK)
