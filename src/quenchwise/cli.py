@@ -731,6 +731,10 @@ def probe(
     name: Optional[str] = typer.Option(None, "--name", help="Name of the fitted curve (default: from the record)."),
     future_s: Optional[float] = typer.Option(None, "--future-s", help="Future window of the inversion [s] "
                                              "(default: chosen from the record's noise)."),
+    tc_time_constant: float = typer.Option(0.0, "--tc-time-constant", help="Thermocouple time constant [s] to "
+                                           "remove from the record (first-order lag; 0: none)."),
+    no_end_correction: bool = typer.Option(False, "--no-end-correction", help="Skip the correction for the "
+                                           "probe's end faces (1-D reading only)."),
     json_out: bool = typer.Option(False, "--json", help="Print the summary as one JSON object, nothing else."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace a fit already in --out."),
 ) -> None:
@@ -762,8 +766,11 @@ def probe(
                              f"({record.temperature_c.min():g} C)")
         if future_s is not None and not (0.05 <= future_s <= 10.0):
             raise InputError("--future-s", future_s, "a number from 0.05 to 10 (s)")
+        if not (0.0 <= tc_time_constant <= 2.0):
+            raise InputError("--tc-time-constant", tc_time_constant, "a number from 0 to 2 (s)")
         _activity(f"fitting the probe record {curve}")
-        q, fit = fit_probe(record, bath_c, name=name or f"{_file_stem(record.name)}_fit", future_s=future_s)
+        q, fit = fit_probe(record, bath_c, name=name or f"{_file_stem(record.name)}_fit", future_s=future_s,
+                           end_correction=not no_end_correction, tc_time_constant_s=tc_time_constant)
         [s] = equivalent_severities([q])
         table = _io.StringIO()
         w = _csv.writer(table, lineterminator="\n")
@@ -782,6 +789,8 @@ def probe(
                    "refit_rms_k": round(fit.rms_k, 2), "refit_max_k": round(fit.max_k, 2),
                    "surface_range_c": [float(q.surface_c[0]), float(q.surface_c[-1])],
                    "equivalent_h_per_inch": None if s.grossmann_h != s.grossmann_h else round(s.grossmann_h, 3),
+                   "tc_time_constant_s": fit.tc_time_constant_s, "end_correction": not no_end_correction,
+                   "warnings": list(fit.warnings),
                    "severity_definition": DEFINITION, "files": [str(f) for f in files]}
         lines = [f"probe fit {q.name}: {record.time_s.size} samples from {curve}, bath {bath_c:g} C",
                  f"method  Beck's sequential function specification on a 1-D alloy 600 cylinder (12.5 mm), "
@@ -792,7 +801,7 @@ def probe(
                  f"{q.htc_w_m2k.max():.0f} W/m2K at {q.surface_c[int(q.htc_w_m2k.argmax())]:.0f} C; equivalent H "
                  f"{_fmt(summary['equivalent_h_per_inch'], '{:.2f} 1/in')}",
                  f"use     [quench] medium = \"{out / 'quenchant.csv'}\"",
-                 "wrote   " + ", ".join(str(f) for f in files)]
+                 "wrote   " + ", ".join(str(f) for f in files)] + [f"warning {w}" for w in fit.warnings]
         _emit(json_out, summary, "\n".join(line for line in lines if line))
 
 
