@@ -469,6 +469,17 @@ def invert(curve: ProbeCurve, bath_c: float, dt_s: float | None = None, future_s
 
 
 def _invert(curve, bath_c, dt_s, future_s, regularization, model, bin_k) -> ProbeFit:
+    # Too short a future window makes the sequential estimate oscillate and blow up: no numpy
+    # warnings on the way, one clear line at the end (below).
+    with np.errstate(all="ignore"):
+        fit = _invert_steps(curve, bath_c, dt_s, future_s, regularization, model, bin_k)
+    if not (np.all(np.isfinite(fit.flux_w_m2)) and math.isfinite(fit.residual_k)) or fit.residual_k > 1.0e3:
+        raise InputError("--future-s", f"{fit.future_steps * fit.dt_s:.3g} s",
+                         "a longer future window: the inversion diverged with this one", source=curve.name)
+    return fit
+
+
+def _invert_steps(curve, bath_c, dt_s, future_s, regularization, model, bin_k) -> ProbeFit:
     model = model or ProbeModel()
     t_raw, y_raw = np.asarray(curve.time_s, float), np.asarray(curve.temperature_c, float)
     if dt_s is None:
