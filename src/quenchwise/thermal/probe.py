@@ -140,6 +140,12 @@ def check_probe_curve(time_s, temperature_c, source: str = "probe curve") -> Non
     if bad.size:
         i = int(bad[0])
         raise InputError(f"data row {i + 1}", f"{t[i]}, {y[i]}", "finite numbers (no NaN or inf)", source=source)
+    # Bound the magnitudes before any arithmetic (differences of numbers near 1e308 overflow).
+    huge = np.flatnonzero((np.abs(t) > 1.0e6) | (np.abs(y) > 1.0e4))
+    if huge.size:
+        i = int(huge[0])
+        raise InputError(f"data row {i + 1}", f"{t[i]:g}, {y[i]:g}", "times within 1e6 s and temperatures in "
+                         "degrees C (an ISO 9950 probe record runs about a minute from about 850 C)", source=source)
     step = np.diff(t)
     if np.any(step <= 0):
         i = int(np.flatnonzero(step <= 0)[0])
