@@ -182,7 +182,7 @@ def stages_of(spec: QuenchSpec) -> tuple[Stages, float]:
 
     >>> s, _ = stages_of(QuenchSpec("oil_conventional", 60.0, 0.5))
     >>> round(s.t_collapse_c), round(s.h_peak)
-    (670, 3315)
+    (660, 3442)
     """
     if spec.kind == "polymer":
         water, water_still = _class_stages("water", spec.bath_c, 0.0)
