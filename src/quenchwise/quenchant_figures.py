@@ -43,7 +43,11 @@ def quenchant_figure(quenchant, severity, out_dir: Path, stem: str, probe=None) 
     ax.set_ylabel("heat-transfer coefficient h [W/(m2 K)]")
     ax.set_ylim(bottom=0)
     ax.grid(True, color=GRID, lw=0.6)
-    ax.legend(fontsize=7.5, frameon=False, loc="best" if probe is None else "upper right")
+    if probe is None:
+        ax.legend(fontsize=7.5, frameon=False, loc="best")
+    else:  # a boxed legend: the curve may pass behind it
+        ax.legend(fontsize=7, frameon=True, framealpha=0.92, edgecolor=GRID,
+                  loc="upper left" if q.emissivity > 0 else "center right")
     title = q.description or q.name
     if probe is None:
         ax.set_title(f"{q.name}: {title}" if q.description else title, fontsize=9, color=INK)
@@ -78,7 +82,7 @@ def quenchant_figure(quenchant, severity, out_dir: Path, stem: str, probe=None) 
         ax_r.set_ylabel("centre temperature [C]")
         ax_r.set_title("cooling-rate curve", fontsize=9, color=INK)
         ax_r.grid(True, color=GRID, lw=0.6)
-        ax_r.legend(fontsize=7.5, frameon=False, loc="upper right")
+        ax_r.legend(fontsize=7.5, frameon=False, loc="lower right")
     note = f"source: {q.source or 'not given'}"
     if q.flash_point_c is not None:
         note += f" | flash point {q.flash_point_c:g} C"
