@@ -201,3 +201,22 @@ def test_case_keys_build_the_model_curve(tmp_path):
     # a named level is the same as its velocity
     moderate = qm.quenchant_from_case({"kind": "oil_conventional", "agitation": "moderate"}, None)
     np.testing.assert_allclose(moderate.htc_w_m2k, load_quenchant("oil_conventional_60c_moderate").htc_w_m2k)
+
+
+def test_run_with_model_keys_end_to_end(cli, tmp_path):
+    # A case that names the bath by class, concentration, temperature and flow runs and reports
+    # the model's curve; a bad flow is one line with exit 2 and nothing written.
+    import json
+
+    case = tmp_path / "c.toml"
+    body = ('title = "invented: polymer bath"\n[steel]\ngrade = "4140"\n[part]\nshape = "bar"\ndiameter_mm = 12\n'
+            '[quench]\nkind = "polymer"\nconcentration_pct = 15\nbath_c = 35\nagitation = {a}\n'
+            '[transform]\nmodel = "none"\n')
+    case.write_text(body.format(a="0.6"), "utf-8")
+    code, stdout, stderr = cli("run", case, "--out", tmp_path / "o", "--json")
+    assert code == 0, stderr
+    assert json.loads(stdout)["quench"]["outer"].startswith("polymer_15pct_35c_0.6m_s")
+    case.write_text(body.format(a='"fast"'), "utf-8")
+    code, _, stderr = cli("run", case, "--out", tmp_path / "o2")
+    assert code == 2 and "quench.agitation" in stderr and len(stderr.strip().splitlines()) == 1
+    assert not (tmp_path / "o2").exists()

@@ -283,9 +283,9 @@ def model_source(spec: QuenchSpec, stages: Stages) -> str:
                                                   "on your oil's data sheet" if spec.kind in FLASH_POINT_C else ""))
 
 
-#: The built-in presets: name -> spec (the 30 liquid names the library had, plus mild / violent
-#: levels added for water 20 C, conventional oil and 15 % polymer). air_20c_still and
-#: gas_20c_forced stay hand-written curves (not from this model).
+#: The built-in presets: name -> spec (the 30 liquid names the library had; a case reaches any
+#: other bath, flow or concentration through [quench] kind). air_20c_still and gas_20c_forced
+#: stay hand-written curves (not from this model).
 def _presets() -> dict[str, QuenchSpec]:
     out = {}
     levels = ("still", "moderate", "strong")
