@@ -24,7 +24,7 @@ SECTIONS = {
     "title": {},
     "steel": {"grade", "grain_size", "austenitize_c", *ELEMENTS},
     "part": {"shape", "thickness_mm", "diameter_mm", "outer_diameter_mm", "inner_diameter_mm", "faces"},
-    "quench": {"medium", "htc_w_m2k", "severity_h", "bath_c", "end_c",
+    "quench": {"medium", "htc_w_m2k", "severity_h", "bath_c", "end_c", "kind", "agitation", "concentration_pct",
                "inner_medium", "inner_htc_w_m2k", "inner_severity_h", "inner_bath_c"},
     "temper": {"temperature_c", "hours"},
     "transform": {"model", "martensite"},
@@ -137,6 +137,13 @@ def _choice(table: dict, section: str, key: str, allowed: tuple, default=None):
 
 
 def _quenchant(q: dict, prefix: str, base_dir: Path, default_bath: float | None) -> Quenchant | None:
+    if not prefix and any(k in q for k in ("kind", "agitation", "concentration_pct")):
+        # A quenchant class with bath, flow and concentration (thermal/quenchant_model.py).
+        from .thermal.quenchant_model import quenchant_from_case
+
+        if "kind" not in q:
+            raise InputError("quench.kind", "(missing)", "a quenchant class when agitation or concentration_pct is given")
+        return quenchant_from_case(q, _number(q, "quench", "bath_c", -20.0, 300.0, default=None))
     keys = [k for k in (f"{prefix}medium", f"{prefix}htc_w_m2k", f"{prefix}severity_h") if k in q]
     if len(keys) != 1:
         if not keys and prefix:

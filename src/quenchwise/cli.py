@@ -618,25 +618,43 @@ def _file_stem(name: str) -> str:
     return re.sub(r"[^A-Za-z0-9_.-]+", "_", name).strip("._") or "quenchant"
 
 
-def _severity_row(q, s) -> dict:
-    return {"name": q.name, "description": q.description, "kind": q.kind, "bath_c": q.bath_c,
-            "agitation": q.agitation or None, "flash_point_c": q.flash_point_c, "emissivity": q.emissivity,
-            "equivalent_h_per_inch": None if s.grossmann_h != s.grossmann_h else round(s.grossmann_h, 3),
-            "equivalent_htc_w_m2k": None if s.htc_w_m2k != s.htc_w_m2k else round(s.htc_w_m2k, 1),
-            "centre_800_500_s": None if s.time_800_500_s != s.time_800_500_s else round(s.time_800_500_s, 2),
-            "severity_note": s.note or None, "source": q.source}
+def _severity_row(q, s, figures: dict | None = None) -> dict:
+    row = {"name": q.name, "description": q.description, "kind": q.kind, "bath_c": q.bath_c,
+           "agitation": q.agitation or None, "flash_point_c": q.flash_point_c, "emissivity": q.emissivity,
+           "equivalent_h_per_inch": None if s.grossmann_h != s.grossmann_h else round(s.grossmann_h, 3),
+           "equivalent_htc_w_m2k": None if s.htc_w_m2k != s.htc_w_m2k else round(s.htc_w_m2k, 1),
+           "centre_800_500_s": None if s.time_800_500_s != s.time_800_500_s else round(s.time_800_500_s, 2),
+           "severity_note": s.note or None, "source": q.source}
+    if figures is not None:
+        row["probe"] = {k: (None if v != v else round(v, 2)) for k, v in figures.items()}
+    return row
+
+
+def _listed_severity(q):
+    """Severity of a built-in curve from its listed H (no solve; centre time not listed)."""
+    from .thermal.quenchants import htc_from_grossmann
+    from .thermal.severity import Severity
+
+    h = q.listed_grossmann_h
+    return Severity(q.name, q.bath_c, float("nan"), float(htc_from_grossmann(h)), float(h))
+
+
+PROBE_NOTE = ("probe: ISO 9950 type probe (12.5 mm alloy 600, from 850 C, centre), 1-D model (thermal/probe.py): "
+              "max cooling rate K/s at centre temperature C, rate at 300 C, times to 600/400/200 C")
 
 
 @app.command()
 def quenchants(
     name: Optional[str] = typer.Argument(None, help="A built-in curve name or a curve CSV path: show that one."),
-    out: Optional[Path] = typer.Option(None, "--out", "-o", help="With NAME: folder for its table (CSV) and h(T) plot."),
+    out: Optional[Path] = typer.Option(None, "--out", "-o", help="With NAME: folder for its table (CSV) and the "
+                                       "figure (h(T), probe cooling curve and cooling-rate curve)."),
     json_out: bool = typer.Option(False, "--json", help="Print the list (or the one curve) as one JSON object."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace a table already in --out."),
 ) -> None:
-    """List the built-in quenchants with bath, agitation, flash point and equivalent Grossmann H;
-    or show one curve (NAME), and with --out write its table and plot."""
+    """List the built-in quenchants with bath, agitation, flash point, ISO 9950 probe figures and
+    equivalent Grossmann H; or show one curve (NAME), and with --out write its table and figure."""
     with _guard():
+        from .thermal.probe import probe_cooling, probe_figures
         from .thermal.quenchants import builtin_quenchants, load_quenchant, quenchant_csv_text
         from .thermal.severity import DEFINITION, equivalent_severities
 
@@ -644,35 +662,54 @@ def quenchants(
             if out is not None:
                 raise InputError("--out", str(out), "only together with a curve NAME")
             media = builtin_quenchants()
-            _activity(f"computing the equivalent severity of {len(media)} curves")
-            rows = [_severity_row(q, s) for q, s in zip(media, equivalent_severities(media))]
-            lines = [f"{'name':<30}{'bath C':>7}  {'agitation':<10}{'flash C':>8}{'H 1/in':>8}{'h eq W/m2K':>12}  kind"]
+            # Built-ins list their probe figures and H (computed once, thermal/quenchant_model.py).
+            todo = [q for q in media if q.listed_grossmann_h is None]
+            computed = dict(zip((q.name for q in todo), equivalent_severities(todo))) if todo else {}
+            rows = [_severity_row(q, computed.get(q.name) or _listed_severity(q), q.listed_probe or probe_figures(q))
+                    for q in media]
+            lines = [f"{'name':<30}{'bath C':>7}  {'agitation':<9}{'flash C':>8}  {'max K/s':>7}{'at C':>6}"
+                     f"{'@300':>6}{'t600':>6}{'t400':>6}{'t200':>6}{'H 1/in':>8}  kind"]
             for r in rows:
-                lines.append(f"{r['name']:<30}{r['bath_c']:>7g}  {r['agitation'] or '-':<10}"
-                             f"{_fmt(r['flash_point_c'], '{:.0f}'):>8}{_fmt(r['equivalent_h_per_inch'], '{:.2f}'):>8}"
-                             f"{_fmt(r['equivalent_htc_w_m2k'], '{:.0f}'):>12}  {r['kind']}")
-            illustrative = sum(r["source"].startswith("illustrative") for r in rows)
-            lines += [f"H: equivalent Grossmann severity, {DEFINITION}.",
-                      f"{illustrative} of {len(rows)} curves are illustrative shapes (invented), not measured data; "
-                      "fit your own bath with `quenchwise probe`. Flash points are illustrative: use your oil's data sheet."]
-            _emit(json_out, {"severity_definition": DEFINITION, "quenchants": rows}, "\n".join(lines))
+                p = r["probe"]
+                lines.append(f"{r['name']:<30}{r['bath_c']:>7g}  {r['agitation'] or '-':<9}"
+                             f"{_fmt(r['flash_point_c'], '{:.0f}'):>8}  {_fmt(p['max_rate_k_s'], '{:.0f}'):>7}"
+                             f"{_fmt(p['t_max_rate_c'], '{:.0f}'):>6}{_fmt(p['rate_300_k_s'], '{:.0f}'):>6}"
+                             f"{_fmt(p['time_600_s'], '{:.1f}'):>6}{_fmt(p['time_400_s'], '{:.1f}'):>6}"
+                             f"{_fmt(p['time_200_s'], '{:.0f}'):>6}{_fmt(r['equivalent_h_per_inch'], '{:.2f}'):>8}  {r['kind']}")
+            lines += [PROBE_NOTE + ".",
+                      f"H: equivalent Grossmann severity, derived from the curve: {DEFINITION}.",
+                      "Liquid curves: presets of the three-stage model set to published probe figures (not measured "
+                      "data; sources in quenchant_data/probe_targets.csv); a case can ask for any bath, flow and "
+                      "concentration with [quench] kind / agitation / concentration_pct. Fit your own bath with "
+                      "`quenchwise probe`. Flash points are illustrative: use your oil's data sheet."]
+            _emit(json_out, {"severity_definition": DEFINITION, "probe_definition": PROBE_NOTE, "quenchants": rows},
+                  "\n".join(lines))
             return
         q = load_quenchant(name, Path.cwd(), key="NAME")
         stem = _file_stem(q.name)
         if out is not None:
             _check_out_dir(out, overwrite, markers=(f"{stem}.csv",))
-        [s] = equivalent_severities([q])
-        row = _severity_row(q, s)
+        [s] = [_listed_severity(q)] if q.listed_grossmann_h is not None else equivalent_severities([q])
+        t_probe, c_probe = probe_cooling(q)
+        from .thermal.probe import cooling_curve_figures
+
+        figures = q.listed_probe or cooling_curve_figures(t_probe, c_probe)
+        row = _severity_row(q, s, figures)
         files: list[Path] = []
         if out is not None:
             from .quenchant_figures import quenchant_figure
 
             with _staged(out) as (staging, files):
                 (staging / f"{stem}.csv").write_text(quenchant_csv_text(q), "utf-8")
-                quenchant_figure(q, s, staging, f"{stem}_htc")
+                quenchant_figure(q, s, staging, f"{stem}_htc", probe=(t_probe, c_probe, figures))
+        p = row["probe"]
         lines = [f"{q.name}" + (f": {q.description}" if q.description else ""),
                  f"kind {q.kind}, bath {q.bath_c:g} C, agitation {q.agitation or '-'}, flash point "
                  f"{_fmt(q.flash_point_c, '{:.0f} C')}" + (f", emissivity {q.emissivity:g} (radiation added)" if q.emissivity else ""),
+                 f"probe   max {_fmt(p['max_rate_k_s'], '{:.0f} K/s')} at {_fmt(p['t_max_rate_c'], '{:.0f} C')}, "
+                 f"{_fmt(p['rate_300_k_s'], '{:.1f} K/s')} at 300 C; to 600 / 400 / 200 C in "
+                 f"{_fmt(p['time_600_s'], '{:.1f}')} / {_fmt(p['time_400_s'], '{:.1f}')} / {_fmt(p['time_200_s'], '{:.1f}')} s"
+                 " (ISO 9950 type probe, 1-D model)",
                  f"equivalent H {_fmt(row['equivalent_h_per_inch'], '{:.2f} 1/in')} "
                  f"(h {_fmt(row['equivalent_htc_w_m2k'], '{:.0f} W/m2K')}; {DEFINITION})" + (f"; {s.note}" if s.note else ""),
                  f"source  {q.source or 'not given'}"]
@@ -680,7 +717,7 @@ def quenchants(
             lines += ["surface_c  htc_w_m2k"] + [f"{t:>9g}  {h:>9g}" for t, h in zip(q.surface_c, q.htc_w_m2k)]
         else:
             lines.append("wrote   " + ", ".join(str(f) for f in files))
-        payload = {**row, "severity_definition": DEFINITION,
+        payload = {**row, "severity_definition": DEFINITION, "probe_definition": PROBE_NOTE,
                    "table": {"surface_c": q.surface_c.tolist(), "htc_w_m2k": q.htc_w_m2k.tolist()},
                    "files": [str(f) for f in files]}
         _emit(json_out, payload, "\n".join(lines))
@@ -695,6 +732,10 @@ def probe(
     name: Optional[str] = typer.Option(None, "--name", help="Name of the fitted curve (default: from the record)."),
     future_s: Optional[float] = typer.Option(None, "--future-s", help="Future window of the inversion [s] "
                                              "(default: chosen from the record's noise)."),
+    tc_time_constant: float = typer.Option(0.0, "--tc-time-constant", help="Thermocouple time constant [s] to "
+                                           "remove from the record (first-order lag; 0: none)."),
+    no_end_correction: bool = typer.Option(False, "--no-end-correction", help="Skip the correction for the "
+                                           "probe's end faces (1-D reading only)."),
     json_out: bool = typer.Option(False, "--json", help="Print the summary as one JSON object, nothing else."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace a fit already in --out."),
 ) -> None:
@@ -726,8 +767,11 @@ def probe(
                              f"({record.temperature_c.min():g} C)")
         if future_s is not None and not (0.05 <= future_s <= 10.0):
             raise InputError("--future-s", future_s, "a number from 0.05 to 10 (s)")
+        if not (0.0 <= tc_time_constant <= 2.0):
+            raise InputError("--tc-time-constant", tc_time_constant, "a number from 0 to 2 (s)")
         _activity(f"fitting the probe record {curve}")
-        q, fit = fit_probe(record, bath_c, name=name or f"{_file_stem(record.name)}_fit", future_s=future_s)
+        q, fit = fit_probe(record, bath_c, name=name or f"{_file_stem(record.name)}_fit", future_s=future_s,
+                           end_correction=not no_end_correction, tc_time_constant_s=tc_time_constant)
         [s] = equivalent_severities([q])
         table = _io.StringIO()
         w = _csv.writer(table, lineterminator="\n")
@@ -746,6 +790,8 @@ def probe(
                    "refit_rms_k": round(fit.rms_k, 2), "refit_max_k": round(fit.max_k, 2),
                    "surface_range_c": [float(q.surface_c[0]), float(q.surface_c[-1])],
                    "equivalent_h_per_inch": None if s.grossmann_h != s.grossmann_h else round(s.grossmann_h, 3),
+                   "tc_time_constant_s": fit.tc_time_constant_s, "end_correction": not no_end_correction,
+                   "warnings": list(fit.warnings),
                    "severity_definition": DEFINITION, "files": [str(f) for f in files]}
         lines = [f"probe fit {q.name}: {record.time_s.size} samples from {curve}, bath {bath_c:g} C",
                  f"method  Beck's sequential function specification on a 1-D alloy 600 cylinder (12.5 mm), "
@@ -756,7 +802,7 @@ def probe(
                  f"{q.htc_w_m2k.max():.0f} W/m2K at {q.surface_c[int(q.htc_w_m2k.argmax())]:.0f} C; equivalent H "
                  f"{_fmt(summary['equivalent_h_per_inch'], '{:.2f} 1/in')}",
                  f"use     [quench] medium = \"{out / 'quenchant.csv'}\"",
-                 "wrote   " + ", ".join(str(f) for f in files)]
+                 "wrote   " + ", ".join(str(f) for f in files)] + [f"warning {w}" for w in fit.warnings]
         _emit(json_out, summary, "\n".join(line for line in lines if line))
 
 

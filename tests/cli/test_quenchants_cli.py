@@ -51,10 +51,28 @@ def test_list_shows_every_builtin_with_its_equivalent_severity(cli):
     assert rows["water_20c_still"]["equivalent_h_per_inch"] > rows["oil_conventional_60c_still"]["equivalent_h_per_inch"]
 
 
+def test_list_shows_the_cached_probe_figures_quickly(cli):
+    # Issue 11: the listing with probe figures in under 3 s (the figures are cached in the files;
+    # tests/thermal/test_quenchant_model.py recomputes them).
+    import time
+
+    start = time.perf_counter()
+    code, stdout, stderr = cli("quenchants", "--json")
+    elapsed = time.perf_counter() - start
+    assert code == 0, stderr
+    assert elapsed < 3.0
+    rows = {r["name"]: r for r in json.loads(stdout)["quenchants"]}
+    for name in builtin_names():
+        listed = load_quenchant(name).listed_probe
+        assert rows[name]["probe"]["max_rate_k_s"] == pytest.approx(listed["max_rate_k_s"], abs=0.01)
+    assert "ISO 9950" in json.loads(stdout)["probe_definition"]
+
+
 def test_one_curve_prints_its_table_and_writes_table_and_plot(cli, tmp_path):
     code, stdout, stderr = cli("quenchants", "polymer_20pct_40c_moderate")
     assert code == 0, stderr
-    assert "equivalent H" in stdout and "surface_c  htc_w_m2k" in stdout and "illustrative shape (invented)" in stdout
+    assert "equivalent H" in stdout and "surface_c  htc_w_m2k" in stdout and "not measured data" in stdout
+    assert "probe   max" in stdout and "K/s" in stdout
     out = tmp_path / "poly"
     code, stdout, stderr = cli("quenchants", "polymer_20pct_40c_moderate", "--out", out)
     assert code == 0, stderr

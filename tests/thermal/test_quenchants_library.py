@@ -3,8 +3,9 @@
 Shape checks are the physics of DOMAIN.md section 3 (common practice, no source): a vapour
 blanket (low h) at high surface temperature, a nucleate-boiling peak (water and brine near
 300-500 C, oils near 500-650 C, polymer solutions between, with longer vapour stages as the
-concentration rises) and convection near the bath. The curves themselves are illustrative shapes
-(invented), and their files must say so.
+concentration rises) and convection near the bath. The liquid curves are presets of the
+three-stage model (thermal/quenchant_model.py), set to published probe figures, not measured
+curves, and their files must say so.
 """
 
 import numpy as np
@@ -42,8 +43,8 @@ def test_every_curve_says_where_it_comes_from_and_carries_its_metadata():
         assert q.description, q.name
         assert q.name in builtin_names()
         if q.kind in ("water", "brine", "oil", "polymer"):
-            # Invented shapes are labelled as such, never as measurements.
-            assert q.source.startswith("illustrative shape (invented), not measured data"), q.name
+            # Model curves are labelled as such, never as measurements.
+            assert q.source.startswith("three-stage quenchant model") and "not measured data" in q.source, q.name
         family, agitation = q.name.rsplit("_", 1)
         if family in FAMILIES:
             kind, bath = FAMILIES[family]
@@ -67,7 +68,10 @@ def test_liquid_shapes_vapour_blanket_peak_and_convection(family):
         h = _h(q, t)
         peak_t, peak = t[h.argmax()], h.max()
         assert lo <= peak_t <= hi, (q.name, peak_t)
-        assert _h(q, 850.0) < 0.5 * peak, q.name          # vapour blanket: low h at high temperature
+        if agitation == "still" and kind != "brine":
+            # Vapour blanket: low h at high temperature (brine and strong flow break it at once,
+            # ASM Handbook Vol. 4 (1991) Quenching of Steel, memory).
+            assert _h(q, 850.0) < 0.5 * peak, q.name
         assert h[0] < 0.5 * peak, q.name                  # convection near the bath
         assert np.all(q.htc_w_m2k > 0)
 

@@ -67,6 +67,24 @@ INCONEL600_CP_J_KGK = np.array([444.0, 465.0, 486.0, 502.0, 519.0, 536.0, 578.0,
 START_RANGE_C = (700.0, 1000.0)
 MIN_POINTS = 20
 MIN_DROP_K = 200.0
+#: A probe in a bath only cools: a rise above the lowest earlier reading by more than this [K]
+#: (noise and the thermocouple's settling are a few K) is a broken or mixed-up record.
+MAX_REHEAT_K = 10.0
+#: Fastest centre cooling a record may show, over any 0.1 s (or between coarser samples) [K/s]:
+#: the probe's conduction limit is about 320 K/s into a 20 C bath (h -> infinity,
+#: tests/thermal/test_quenchant_model.py); noise and a margin allow 450.
+MAX_RATE_K_S = 450.0
+#: Sample spacing accepted [s]: the boiling stage lasts a few seconds, so a coarser record
+#: cannot be inverted; finer than 0.1 ms is not a thermocouple record.
+MAX_SPACING_S = 1.0
+MAX_GAP_S = 5.0
+MIN_SPACING_S = 1.0e-4
+MIN_DURATION_S = 5.0
+#: Below this sampling rate a fast quenchant's boiling peak is smoothed (warning) [Hz].
+FAST_SAMPLING_HZ = 50.0
+#: Refit residual above which the transitions are probably smoothed (warning) [K].
+REFIT_WARN_K = 10.0
+
 #: The inversion stops when the centre is this close to the bath (h = q / (T_s - T_bath) becomes
 #: ill-conditioned near the bath temperature).
 STOP_ABOVE_BATH_K = 30.0
@@ -122,6 +140,12 @@ def check_probe_curve(time_s, temperature_c, source: str = "probe curve") -> Non
     if bad.size:
         i = int(bad[0])
         raise InputError(f"data row {i + 1}", f"{t[i]}, {y[i]}", "finite numbers (no NaN or inf)", source=source)
+    # Bound the magnitudes before any arithmetic (differences of numbers near 1e308 overflow).
+    huge = np.flatnonzero((np.abs(t) > 1.0e6) | (np.abs(y) > 1.0e4))
+    if huge.size:
+        i = int(huge[0])
+        raise InputError(f"data row {i + 1}", f"{t[i]:g}, {y[i]:g}", "times within 1e6 s and temperatures in "
+                         "degrees C (an ISO 9950 probe record runs about a minute from about 850 C)", source=source)
     step = np.diff(t)
     if np.any(step <= 0):
         i = int(np.flatnonzero(step <= 0)[0])
@@ -140,6 +164,36 @@ def check_probe_curve(time_s, temperature_c, source: str = "probe curve") -> Non
     if y[0] - y.min() < MIN_DROP_K:
         raise InputError("temperature_c", f"{y[0]:g} -> {y.min():g}",
                          f"a record that cools by at least {MIN_DROP_K:g} K", source=source)
+    spacing = float(np.median(step))
+    if spacing < MIN_SPACING_S:
+        raise InputError("time_s", f"median spacing {spacing:.3g} s",
+                         f"samples at least {MIN_SPACING_S:g} s apart (seconds, not ms or ticks?)", source=source)
+    if t[-1] - t[0] < MIN_DURATION_S:
+        raise InputError("time_s", f"{t[0]:g} -> {t[-1]:g} s",
+                         f"a record of at least {MIN_DURATION_S:g} s (times in seconds)", source=source)
+    if spacing > MAX_SPACING_S or step.max() > MAX_GAP_S:
+        raise InputError("time_s", f"spacing {spacing:.3g} s (largest gap {step.max():.3g} s)",
+                         f"samples at most {MAX_SPACING_S:g} s apart, no gap over {MAX_GAP_S:g} s (the boiling "
+                         "stage lasts a few seconds: a coarser record is too coarse for the fit)", source=source)
+    low = np.minimum.accumulate(y)
+    rise = y - low
+    if rise.max() > MAX_REHEAT_K:
+        i = int(np.argmax(rise))
+        raise InputError(f"temperature_c at data row {i + 1}", float(y[i]),
+                         f"a record that only cools (it rises {rise[i]:.0f} K above the {low[i]:g} C read before; "
+                         f"at most {MAX_REHEAT_K:g} K of noise allowed)", source=source)
+    # Fastest drop over 0.1 s (or between neighbours where samples are coarser).
+    j = np.maximum(np.searchsorted(t, t + 0.1), np.arange(t.size) + 1)
+    ok = j < t.size
+    if ok.any():
+        i_idx, j_idx = np.flatnonzero(ok), j[ok]
+        rates = (y[i_idx] - y[j_idx]) / (t[j_idx] - t[i_idx])
+        k = int(np.argmax(rates))
+        if rates[k] > MAX_RATE_K_S:
+            a, b = int(i_idx[k]), int(j_idx[k])
+            raise InputError(f"temperature_c at data rows {a + 1}-{b + 1}", f"{y[a]:g} -> {y[b]:g} C in {t[b] - t[a]:.3g} s",
+                             f"a cooling rate of at most {MAX_RATE_K_S:g} K/s (the probe cannot cool faster than "
+                             "about 320 K/s even in brine: a jump, a spike or a unit error)", source=source)
 
 
 def parse_probe_curve(text: str, source: str = "probe curve") -> ProbeCurve:
@@ -354,6 +408,8 @@ class ProbeFit:
     residual_k: float = float("nan")   # RMS of measured - model centre along the inversion
     noise_k: float = float("nan")      # noise level estimated from the record (discrepancy rule)
     end_correction_k: float = 0.0      # largest end-face correction applied to the record [K]
+    tc_time_constant_s: float = 0.0    # thermocouple lag removed from the record [s]
+    warnings: list = field(default_factory=list)
 
 
 def _uniform(time_s, temperature_c, dt):
@@ -419,6 +475,17 @@ def invert(curve: ProbeCurve, bath_c: float, dt_s: float | None = None, future_s
 
 
 def _invert(curve, bath_c, dt_s, future_s, regularization, model, bin_k) -> ProbeFit:
+    # Too short a future window makes the sequential estimate oscillate and blow up: no numpy
+    # warnings on the way, one clear line at the end (below).
+    with np.errstate(all="ignore"):
+        fit = _invert_steps(curve, bath_c, dt_s, future_s, regularization, model, bin_k)
+    if not (np.all(np.isfinite(fit.flux_w_m2)) and math.isfinite(fit.residual_k)) or fit.residual_k > 1.0e3:
+        raise InputError("--future-s", f"{fit.future_steps * fit.dt_s:.3g} s",
+                         "a longer future window: the inversion diverged with this one", source=curve.name)
+    return fit
+
+
+def _invert_steps(curve, bath_c, dt_s, future_s, regularization, model, bin_k) -> ProbeFit:
     model = model or ProbeModel()
     t_raw, y_raw = np.asarray(curve.time_s, float), np.asarray(curve.temperature_c, float)
     if dt_s is None:
@@ -548,8 +615,31 @@ def _table_quenchant(fit: ProbeFit, name: str) -> Quenchant:
     return Quenchant(name, fit.bath_c, fit.table_surface_c, fit.table_htc_w_m2k)
 
 
+def lag_corrected(time_s, temperature_c, time_constant_s: float) -> np.ndarray:
+    """The temperature a first-order thermocouple with time constant tau [s] was lagging behind:
+    T = y + tau dy/dt (dy/dt from the record smoothed over about 0.05 s, so noise is not
+    amplified sample by sample). A sheathed 1.5 mm type K thermocouple has tau of order 0.05-0.2 s
+    in a quench (memory); use the value of your probe's certificate.
+
+    >>> t = np.linspace(0.0, 10.0, 1001); y = 100.0 - 5.0 * t
+    >>> round(float(lag_corrected(t, y, 0.2)[500]), 3)
+    74.0
+    """
+    t = np.asarray(time_s, dtype=float)
+    y = np.asarray(temperature_c, dtype=float)
+    if time_constant_s <= 0:
+        return y.copy()
+    width = int(max(1, round(0.05 / max(float(np.median(np.diff(t))), 1e-9))))
+    if width > 1:
+        pad = width // 2
+        ys = np.convolve(np.pad(y, pad, mode="edge"), np.ones(2 * pad + 1) / (2 * pad + 1), mode="valid")
+    else:
+        ys = y
+    return y + time_constant_s * np.gradient(ys, t)
+
+
 def fit_probe(curve: ProbeCurve, bath_c: float, name: str | None = None, end_correction: bool = True,
-              **options) -> tuple[Quenchant, ProbeFit]:
+              tc_time_constant_s: float = 0.0, kind: str | None = None, **options) -> tuple[Quenchant, ProbeFit]:
     """Invert the record, correct for the probe's end faces, build the quenchant and refit.
 
     End correction (defect correction, one pass): the 1-D fit h0 is run forward on the finite
@@ -558,7 +648,17 @@ def fit_probe(curve: ProbeCurve, bath_c: float, name: str | None = None, end_cor
     would have shown, and its 1-D inversion (same future window) is the result. The refit runs the
     final curve on the finite probe against the measured record. Without the correction a slow
     oil reads h about 4-8 % high at 300-550 C (shown in tests/thermal/test_quenchants_probe.py).
+
+    tc_time_constant_s: a first-order thermocouple lag removed from the record first
+    (lag_corrected). kind: the fluid ('water', 'brine', 'polymer', 'oil', ...; default the record's
+    '# kind:' line) for the sampling warning. fit.warnings lists what makes the result less
+    trustworthy: sampling below FAST_SAMPLING_HZ for a fast quenchant, refit residual above
+    REFIT_WARN_K (sharp transitions smoothed).
     """
+    measured = curve
+    if tc_time_constant_s > 0:
+        curve = ProbeCurve(curve.time_s, lag_corrected(curve.time_s, curve.temperature_c, tc_time_constant_s),
+                           curve.name, curve.meta)
     fit = invert(curve, bath_c, **options)
     if end_correction:
         # D(t) is smooth: steps of 0.1 s (or the record's, if coarser) are plenty.
@@ -572,8 +672,10 @@ def fit_probe(curve: ProbeCurve, bath_c: float, name: str | None = None, end_cor
         noise = fit.noise_k
         fit = invert(corrected, bath_c, **options)
         fit.noise_k = noise
-        fit.measured_c = np.interp(fit.time_s, t_raw - t_raw[0], np.asarray(curve.temperature_c, float))
         fit.end_correction_k = float(np.max(np.abs(delta[: fit.time_s.size])))
+    # The refit is compared with what the thermocouple read (the lag, if any, put back below).
+    t_raw = np.asarray(measured.time_s, float)
+    fit.measured_c = np.interp(fit.time_s, t_raw - t_raw[0], np.asarray(measured.temperature_c, float))
     meta = curve.meta
 
     def num(key):
@@ -596,10 +698,29 @@ def fit_probe(curve: ProbeCurve, bath_c: float, name: str | None = None, end_cor
         refit = FiniteProbeModel().cool(q.htc, q.bath_c, float(fit.measured_c[0]), fit.time_s, fit.dt_s)
     else:
         refit, _ = ProbeModel().cool(q.htc, q.bath_c, float(fit.measured_c[0]), fit.time_s, fit.dt_s / 2.0)
+    if tc_time_constant_s > 0:
+        # What the lagging thermocouple would read from the refitted centre (implicit first-order lag).
+        lagged = np.empty_like(refit)
+        lagged[0] = refit[0]
+        a = fit.dt_s / (tc_time_constant_s + fit.dt_s)
+        for i in range(1, refit.size):
+            lagged[i] = lagged[i - 1] + a * (refit[i] - lagged[i - 1])
+        refit = lagged
+        fit.tc_time_constant_s = float(tc_time_constant_s)
     fit.refit_c = refit
     err = refit - fit.measured_c
     fit.rms_k = float(np.sqrt(np.mean(err ** 2)))
     fit.max_k = float(np.max(np.abs(err)))
+    spacing = float(np.median(np.diff(t_raw)))
+    fluid = (kind or meta.get("kind", "")).lower()
+    fastest = float(np.max(-np.diff(fit.measured_c) / fit.dt_s)) if fit.measured_c.size > 1 else 0.0
+    if 1.0 / spacing < FAST_SAMPLING_HZ and (fluid in ("water", "brine", "polymer") or fastest > 100.0):
+        fit.warnings.append(f"sampled at {1.0 / spacing:.3g} Hz: below {FAST_SAMPLING_HZ:g} Hz the boiling peak of "
+                            f"{fluid or 'a fast quenchant'} is smoothed (peak h low, transitions broadened); record at "
+                            f"{FAST_SAMPLING_HZ:g} Hz or more")
+    if fit.rms_k > REFIT_WARN_K:
+        fit.warnings.append(f"refit residual {fit.rms_k:.1f} K RMS (above {REFIT_WARN_K:g} K): the fitted curve smooths "
+                            "sharp transitions (vapour collapse, boiling peak); compare the refit with the record")
     return q, fit
 
 
@@ -619,3 +740,92 @@ def synthesize_probe_curve(quenchant: Quenchant, initial_c: float = 850.0, durat
         centre = centre + np.random.default_rng(seed).normal(0.0, noise_k, centre.size)
     return ProbeCurve(times, centre, name=f"synthetic probe record ({quenchant.name})",
                       meta={"bath_c": f"{quenchant.bath_c:g}", "source": "synthesized (invented data)"})
+
+
+# -- probe figures of a curve (ISO 9950 / ASTM D6200 numbers) -----------------------------------
+#: Forward-run steps [s] for the probe figures: fine through the vapour collapse and the boiling
+#: peak, coarser in the slow convection tail (each segment restarts BDF2 with an implicit Euler
+#: step). A step study (tests/thermal/test_quenchant_model.py) shows the figures converged.
+FIGURE_SEGMENTS_S = ((25.0, 0.004), (80.0, 0.02), (600.0, 0.1))
+FIGURE_NAMES = ("max_rate_k_s", "t_max_rate_c", "rate_300_k_s", "time_600_s", "time_400_s", "time_200_s")
+
+
+def probe_cooling(quenchant: Quenchant, initial_c: float = 850.0, stop_c: float | None = None,
+                  model: ProbeModel | None = None, segments=FIGURE_SEGMENTS_S):
+    """Centre temperature of the ISO 9950 probe (1-D model, ProbeModel) quenched with the curve:
+    (time_s, centre_c, rate_k_s) with rate = -dT/dt of each step at the step's mid-time. Runs
+    until the centre is below stop_c (default: 200 C, or 10 K above a bath hotter than 190 C) or
+    the last segment ends."""
+    model = model or ProbeModel()
+    bath = quenchant.bath_c
+    stop = stop_c if stop_c is not None else max(195.0, bath + 10.0)
+    field_now = np.full(model.n, float(initial_c))
+    field_old = field_now.copy()
+    times, centre = [0.0], [float(initial_c)]
+    surface = float(initial_c)
+    t = 0.0
+    for end, dt in segments:
+        first = True
+        while t < end - 1e-9 and centre[-1] > stop:
+            lead, c_now, c_old = (1.0, 1.0, 0.0) if first else (1.5, 2.0, 0.5)
+            k_last = float(model.conductivity(field_now[-1]))
+            half = k_last / (0.5 * model.dx)
+            h = float(quenchant.htc(surface))
+            g = model.radius / (1.0 / max(h, 1e-12) + 1.0 / half)
+            ab, cap, _ = model._banded(field_now, lead, dt, g)
+            rhs = cap * (c_now * field_now - c_old * field_old)
+            rhs[-1] += g * bath
+            new = solve_banded((1, 1), ab, rhs)
+            field_old, field_now = field_now, new
+            surface = (half * new[-1] + h * bath) / (half + h)
+            t += dt
+            times.append(t)
+            centre.append(float(model.centre(new)))
+            first = False
+    times, centre = np.array(times), np.array(centre)
+    return times, centre
+
+
+def cooling_curve_figures(time_s, centre_c) -> dict:
+    """The six ISO 9950 / ASTM D6200 figures of a centre cooling curve: maximum cooling rate
+    [K/s] and the centre temperature where it occurs [C], cooling rate at 300 C [K/s], and the
+    times to 600, 400 and 200 C [s] (nan where the curve does not get there). Rates are taken on
+    the step mid-points, smoothed over 0.1 s like a lab's derivative.
+
+    >>> t = np.linspace(0.0, 100.0, 10001); y = 20.0 + 830.0 * np.exp(-t / 10.0)
+    >>> f = cooling_curve_figures(t, y); round(f["max_rate_k_s"], 1), round(f["time_400_s"], 2)
+    (83.0, 7.81)
+    """
+    t = np.asarray(time_s, dtype=float)
+    y = np.asarray(centre_c, dtype=float)
+    tm = 0.5 * (t[1:] + t[:-1])
+    ym = 0.5 * (y[1:] + y[:-1])
+    rate = -np.diff(y) / np.diff(t)
+    # Smooth over 0.1 s (on the fine part of the run) so that one step's noise is not the maximum.
+    width = max(1, int(round(0.1 / max(float(np.min(np.diff(t))), 1e-6))))
+    if width > 1 and rate.size > width:
+        kernel = np.ones(width) / width
+        rate_s = np.convolve(rate, kernel, mode="same")
+        edge = width // 2
+        rate_s[:edge], rate_s[-edge:] = rate[:edge], rate[-edge:]
+    else:
+        rate_s = rate
+    i = int(np.argmax(rate_s))
+
+    def time_to(level):
+        below = np.flatnonzero(y <= level)
+        if below.size == 0 or below[0] == 0:
+            return float("nan")
+        j = below[0]
+        return float(t[j - 1] + (y[j - 1] - level) / (y[j - 1] - y[j]) * (t[j] - t[j - 1]))
+
+    order = np.argsort(ym)
+    rate_300 = float(np.interp(300.0, ym[order], rate_s[order])) if ym.min() <= 300.0 <= ym.max() else float("nan")
+    return {"max_rate_k_s": float(rate_s[i]), "t_max_rate_c": float(ym[i]), "rate_300_k_s": rate_300,
+            "time_600_s": time_to(600.0), "time_400_s": time_to(400.0), "time_200_s": time_to(200.0)}
+
+
+def probe_figures(quenchant: Quenchant, initial_c: float = 850.0) -> dict:
+    """The six ISO 9950 figures of a curve run forward on the probe from 850 C (probe_cooling)."""
+    t, y = probe_cooling(quenchant, initial_c)
+    return cooling_curve_figures(t, y)

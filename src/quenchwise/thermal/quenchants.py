@@ -10,28 +10,19 @@ fit (thermal.probe) writes this same format, so `run` accepts it by path.
 Built-in library (package data, quenchants/*.csv; `quenchwise quenchants` lists them):
 water at 20, 40 and 70 C; brine (10 % NaCl) at 20 C; conventional and fast quench oils at 60 C;
 a hot (marquench) oil at 160 C; polymer (PAG-type) solutions of 10, 20 and 30 % at 40 C, each
-still, moderate and strong; still air and forced gas. Every liquid curve is an illustrative
-shape (invented), NOT measured data, and its source line says so: a vapour blanket (low h) at
-high surface temperature, a nucleate-boiling peak (water and brine near 350-450 C, polymers
-near 430-530 C, oils near 580-640 C), and convection near the bath. Five of them (still and
-strongly agitated water, still brine, still and well-agitated conventional oil) had their peak
-level set so that their equivalent Grossmann H (thermal.severity) falls in the ranges of the ASM
-Handbook quench severity table (memory); tests/validation/test_quench_severity.py checks them.
-The others follow from the same shapes by the rules below and were not tuned.
+still, moderate and strong; still air and forced gas. The liquid curves are presets of the
+three-stage quenchant model (thermal/quenchant_model.py: vapour blanket, boiling peak,
+convection; continuous in bath temperature, agitation velocity and polymer concentration), whose
+parameters were set to published ISO 9950 / ASTM D6200 / D6482-type probe figures
+(quenchant_data/probe_targets.csv). They are not measurements of a particular bath, and their
+source lines say so. Each built-in file caches its probe figures ('# probe_<figure>:') and its
+equivalent Grossmann H ('# equivalent_h:'), derived from the curve (thermal.probe,
+thermal.severity) and recomputed by tests; H was not a target.
 
-Agitation: separate curves, not a factor. Agitation changes the shape, not only the level: it
-breaks the vapour blanket earlier (at a higher surface temperature), raises convection and the
-film stage much more than the boiling peak. One multiplier on h(T) cannot move the end of the
-vapour stage, and a measured probe curve (the thing users bring) is a whole curve per agitation
-anyway. Levels: "still" (no agitation), "moderate" (a well-stirred bath; the handbook table's
-"good agitation"), "strong" (forced circulation close to the part; the table's "strong").
-Rules used to make the illustrative curves of one family (invented, stated for transparency):
-moderate / strong multiply convection by 1.3 / 1.7 (water, polymer) or 1.5 / 2.2 (oil, brine),
-the film stage by 1.3 / 1.7 (water, polymer, brine) or 1.4 / 1.9 (oil), the peak by a family
-factor, and raise the end of the vapour stage by 15 / 30 K (water, polymer), 30 / 60 K (brine)
-or 60 / 120 K (oil). A hotter water bath ends the vapour stage 2 K lower per K and lowers the
-peak; more polymer lengthens the vapour stage (6 K lower per % concentration) and lowers the
-peak.
+Agitation: the model changes the shape, not only the level: flow breaks the vapour blanket earlier
+(at a higher surface temperature), raises convection and the film stage more than the boiling
+peak. One multiplier on h(T) cannot move the end of the vapour stage, and a measured probe curve
+(the thing users bring) is a whole curve per agitation anyway.
 
 Oils carry a flash point (illustrative values; use the data sheet of your oil): results warn
 when the bath comes within results.FLASH_MARGIN_K of it.
@@ -111,6 +102,9 @@ class Quenchant:
     #: '# equivalent_h:' line; tests/validation/test_quench_severity.py recomputes every one), so a
     #: run need not solve the severity sweep again. None for user curves and other baths.
     listed_grossmann_h: float | None = None
+    #: ISO 9950 probe figures listed with a built-in curve at its own bath ('# probe_<figure>:'
+    #: lines, thermal.probe.FIGURE_NAMES; tests/thermal/test_quenchant_model.py recomputes them).
+    listed_probe: dict | None = None
 
     def htc(self, surface_c):
         """h at the given surface temperatures [W/(m2 K)], table held constant beyond its ends."""
@@ -121,8 +115,9 @@ class Quenchant:
 
     def at_bath(self, bath_c: float) -> "Quenchant":
         """The same curve in a bath at another temperature (its listed H holds only at its own bath)."""
-        listed = self.listed_grossmann_h if float(bath_c) == self.bath_c else None
-        return replace(self, bath_c=float(bath_c), listed_grossmann_h=listed)
+        same = float(bath_c) == self.bath_c
+        return replace(self, bath_c=float(bath_c), listed_grossmann_h=self.listed_grossmann_h if same else None,
+                       listed_probe=self.listed_probe if same else None)
 
     @classmethod
     def constant(cls, htc_w_m2k: float, bath_c: float, name: str | None = None) -> "Quenchant":
@@ -234,7 +229,9 @@ def load_quenchant(name_or_path: str, base_dir: Path | None = None, key: str = "
         text = (resources.files("quenchwise.thermal") / "quenchants" / f"{name_or_path}.csv").read_text("utf-8")
         curve = _parse(text, name_or_path, key)
         listed = re.search(r"^#\s*equivalent_h:\s*([0-9.]+)", text, re.MULTILINE)
-        return replace(curve, listed_grossmann_h=float(listed.group(1))) if listed else curve
+        probe = {m.group(1): float(m.group(2))
+                 for m in re.finditer(r"^#\s*probe_(\w+):\s*([-0-9.eE+a-z]+)\s*$", text, re.MULTILINE)}
+        return replace(curve, listed_grossmann_h=float(listed.group(1)) if listed else None, listed_probe=probe or None)
     path = Path(name_or_path)
     if base_dir is not None and not path.is_absolute():
         path = base_dir / path

@@ -1,0 +1,99 @@
+"""Part-level check of the quenchant curves: handbook as-quenched round bars (issue 11 item 5).
+
+benchmarks/data/mass_effect_bars.csv holds the handbook readings, each row with its source
+(recalled: "(memory, +/-5 HRC)"); benchmarks/mass_effect.py runs them. Here: the file's form, the
+bias by position with stated tolerances, and the surface-to-centre gradient of oil-quenched 4140
+(common practice, no source: a 2 in 4140 bar quenched in oil is clearly harder at the surface
+than at the centre).
+"""
+
+import importlib.util
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+ROOT = Path(__file__).resolve().parents[2]
+spec = importlib.util.spec_from_file_location("mass_effect", ROOT / "benchmarks" / "mass_effect.py")
+mass_effect = importlib.util.module_from_spec(spec)
+spec.loader.exec_module(mass_effect)
+
+
+def test_the_bar_file_follows_the_contract():
+    text = mass_effect.DATA.read_text("utf-8")
+    header = [line for line in text.splitlines() if line and not line.startswith("#")][0]
+    assert header == "grade,c,mn,si,ni,cr,mo,austenitize_c,quenchant,diameter_in,position,hrc,source"
+    presets, bars = mass_effect.read_bars()
+    from quenchwise.thermal.quenchants import builtin_names
+
+    assert set(presets) == {"water", "oil"} and set(presets.values()) <= set(builtin_names())
+    grades = {k[0] for k in bars}
+    assert len(grades) >= 5 and {k[1] for k in bars} == {"water", "oil"}
+    assert {k[2] for k in bars} == {0.5, 1.0, 2.0, 4.0}
+    for key, readings in bars.items():
+        assert set(readings) == set(mass_effect.POSITIONS), key
+    import csv
+
+    for row in csv.DictReader(line for line in text.splitlines() if line and not line.startswith("#")):
+        assert row["source"] and "(memory" in row["source"]
+
+
+@pytest.fixture(scope="module")
+def table():
+    presets, bars = mass_effect.read_bars()
+    return bars, mass_effect.predict(bars, presets)
+
+
+def test_bias_by_position_within_stated_tolerances(table):
+    # Handbook values recalled to +/-5 HRC and composition taken as the grade's nominal (not the
+    # tested heat): mean bias within 8 HRC and RMS within 10 HRC at each position, over the bars
+    # the model puts on the HRC scale (>= 20). Today (default kinetics li1998, presets in the file):
+    # about +4 / +5 / +7 mean and 8 / 8 / 9 RMS, surface / half radius / centre (README table).
+    bars, predicted = table
+    for p in mass_effect.POSITIONS:
+        d = np.array([predicted[k][p] - bars[k][p] for k in bars])
+        d = d[np.isfinite(d)]
+        assert d.size >= 0.75 * len(bars), p
+        assert abs(d.mean()) <= 8.0 and np.sqrt(np.mean(d * d)) <= 10.0, (p, d.mean())
+
+
+def test_hardness_falls_from_surface_to_centre_and_with_size(table):
+    # Common practice, no source: in every bar the surface is not softer than the centre (0.5 HRC
+    # numerical slack), and a bigger bar of the same steel is not harder at the centre.
+    bars, predicted = table
+    for k, v in predicted.items():
+        if np.isfinite(v["centre"]):
+            assert v["surface"] >= v["centre"] - 0.5, k
+    for k in bars:
+        bigger = [b for b in bars if b[0] == k[0] and b[1] == k[1] and b[2] > k[2]]
+        for b in bigger:
+            c_small, c_big = predicted[k]["centre"], predicted[b]["centre"]
+            if np.isfinite(c_big):
+                assert c_big <= c_small + 0.5, (k, b)
+
+
+def _bar(diameter_mm, medium, model):
+    from quenchwise.case import parse_case
+    from quenchwise.workflows.simulate import simulate
+
+    case = parse_case({"title": "4140 bar", "steel": {"grade": "4140"}, "part": {"shape": "bar", "diameter_mm": diameter_mm},
+                       "quench": {"medium": medium, "end_c": 100.0}, "transform": {"model": model}})
+    [res] = simulate([case])
+    points = dict(res.points())
+    return float(res.at(res.hrc, points["surface"])), float(res.at(res.hrc, points["centre"]))
+
+
+_KINETICS = ("default kinetics li1998 makes 4140 too hardenable for this (A255 DI 4.8 in): the 2 in bar comes "
+             "out nearly through-hardened, about 1.5 HRC from surface to centre; the quenchant curve is not the "
+             "limit (the calibrated li1998-a255 shows 4-5 HRC with the same curve)")
+
+
+@pytest.mark.parametrize("model", [pytest.param("li1998", marks=pytest.mark.xfail(strict=True, reason=_KINETICS)),
+                                   "li1998-a255"])
+@pytest.mark.parametrize("diameter_mm, medium", [(50.8, "oil_conventional_60c_moderate"),
+                                                 (50.0, "oil_conventional_60c_still")])
+def test_oil_quenched_2in_4140_is_clearly_harder_at_the_surface(model, diameter_mm, medium):
+    # Common practice, no source; handbook bars read about 49 at the surface and 38 at the centre
+    # (memory). "Clearly": at least 3 HRC.
+    surface, centre = _bar(diameter_mm, medium, model)
+    assert surface - centre >= 3.0, (surface, centre)
