@@ -340,17 +340,23 @@ def _publish(c: Claim, staging: Path) -> list[Path]:
             c.published = True
             fault("publish:exchanged")
         elif _exchange(staging, c.real):
-            c.published = True   # staging now holds the previous result
+            c.published = True   # staging now holds the previous result (removed by staged())
             fault("publish:exchanged")
-            _remove_old(staging)
         else:
             old = Path(tempfile.mkdtemp(prefix=f".{c.real.name}.qw-old-", dir=c.real.parent))
             os.rename(c.real, old)      # onto the empty folder mkdtemp made
-            fault("publish:moved-old")
-            os.rename(staging, c.real)
+            try:
+                fault("publish:moved-old")
+                os.rename(staging, c.real)
+            except BaseException:
+                if not os.path.lexists(c.real):
+                    os.rename(old, c.real)      # the previous result goes back
+                raise
             c.published = True
-            fault("publish:exchanged")
-            _remove_old(old)
+            try:
+                fault("publish:exchanged")
+            finally:
+                _remove_old(old)
     return [c.out / n for n in new_names]
 
 
@@ -383,4 +389,4 @@ def staged(out: Path):
     finally:
         if os.path.lexists(staging):
             with critical():
-                shutil.rmtree(staging, ignore_errors=True)
+                _remove_old(staging) if c.published else shutil.rmtree(staging, ignore_errors=True)
