@@ -5,12 +5,13 @@ line and the signal's status (130 / 143) too, not a traceback or a silent exit."
 
 import sys
 
-from .publish import install_handlers
+from .publish import fault, install_handlers
 
 
 def main() -> None:
     install_handlers()
     try:
+        fault("importing")      # tests: a signal at this instant lands in the imports below
         from .cli import entry
     except KeyboardInterrupt as exc:
         import signal
