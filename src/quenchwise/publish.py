@@ -202,6 +202,13 @@ def claim(out: Path, overwrite: bool, markers: tuple = ()) -> Claim:
     Raises InputError (one line, exit 2) for a path that cannot be a result folder, a folder locked
     by another run, or results already there without `overwrite`."""
     out = Path(out)
+    try:
+        return _claim(out, overwrite, markers)
+    except OSError as exc:    # a name too long, a loop of links, an I/O error...
+        raise _input_error(out, f"a usable folder path ({exc.strerror or exc})") from None
+
+
+def _claim(out: Path, overwrite: bool, markers: tuple) -> Claim:
     real = Path(os.path.realpath(out))
     if real in _claims:
         return _claims[real]
