@@ -58,7 +58,8 @@ TEXT = st.text(alphabet=string.printable, max_size=30)
 
 def _paths(work: Path):
     (work / "afile").write_text("x")
-    return st.sampled_from([str(work / "o"), str(work / "afile"), str(work / "afile" / "sub"), "", ".", "/",
+    good = [str(work / "o")] * 10     # mostly a good folder, so that the other options get checked
+    return st.sampled_from(good + [str(work / "afile"), str(work / "afile" / "sub"), "", ".", "/",
                             "/proc/qw-fuzz", str(work / "deep" / "er" / "o"), str(work / ("x" * 300)),
                             str(work / "o\nnewline")])
 
@@ -78,7 +79,7 @@ COMMANDS = {
 @st.composite
 def argv(draw, work: Path):
     command = draw(st.sampled_from(sorted(COMMANDS)))
-    case = draw(st.sampled_from([str(CASES / "wear_plate.toml"), str(CASES / "shaft_water.toml"),
+    case = draw(st.sampled_from([str(CASES / "wear_plate.toml")] * 4 + [str(CASES / "shaft_water.toml"),
                                  str(CASES / "pin_sizing.toml"), str(work / "missing.toml"), str(work / "afile"), ""]))
     args = [command]
     if command == "quenchants":
@@ -115,7 +116,7 @@ def test_fuzz_command_line_options(stubbed, capsys, monkeypatch):
     monkeypatch.chdir(work)
     seen = {"reached": 0, "refused": 0}
 
-    @settings(max_examples=400, deadline=None, database=None,
+    @settings(max_examples=400, deadline=None, database=None, derandomize=True,
               suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow])
     @given(args=argv(work))
     def one(args):
@@ -134,7 +135,7 @@ def test_fuzz_command_line_options(stubbed, capsys, monkeypatch):
         assert not left, (args, left)
 
     one()
-    assert seen["reached"] > 20 and seen["refused"] > 20, seen     # both kinds were exercised
+    assert seen["reached"] > 40 and seen["refused"] > 40, seen     # both kinds were exercised
 
 
 # -- band CSVs -----------------------------------------------------------------------------------
@@ -155,7 +156,7 @@ def band_text(draw):
     return text
 
 
-@settings(max_examples=300, deadline=None, database=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@settings(max_examples=300, deadline=None, database=None, derandomize=True, suppress_health_check=[HealthCheck.function_scoped_fixture])
 @given(text=band_text(), raw=st.booleans())
 def test_fuzz_band_csv(tmp_path, text, raw):
     """300 generated band CSVs: rows within the allowed ranges, or one InputError line naming --band."""
@@ -181,7 +182,7 @@ KEY = st.one_of(st.text(alphabet=string.ascii_letters + string.digits + "_-", mi
                 st.integers(1, 6000).map(lambda n: "k" * n), st.text(min_size=1, max_size=20))
 
 
-@settings(max_examples=300, deadline=None, database=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@settings(max_examples=300, deadline=None, database=None, derandomize=True, suppress_health_check=[HealthCheck.function_scoped_fixture])
 @given(key=KEY, where=st.sampled_from(["top", "steel", "part", "quench", "mesh", "new", "dotted"]),
        bom=st.booleans())
 def test_fuzz_case_keys(tmp_path, key, where, bom):

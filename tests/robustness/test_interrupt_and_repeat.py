@@ -31,7 +31,6 @@ def _run(args, fault=None, **kw):
     ("importing", "INT", 130),            # during the imports (a traceback before)
     ("importing", "TERM", 143),           # the first second (silent before)
     ("solving", "TERM", 143),
-    ("solving", "INT", 130),
     ("writing results", "TERM", 143),     # while the staged files are written
 ])
 def test_signal_stops_cleanly_and_keeps_earlier_results(tmp_path, point, sig, status):
