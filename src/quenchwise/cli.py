@@ -762,7 +762,9 @@ def entry() -> None:
     except click_errors.ClickException as exc:
         typer.echo(f"quenchwise: {' '.join(exc.format_message().split())}", err=True)
         raise SystemExit(exc.exit_code) from None
-    except typer.Abort:
+    except typer.Abort as exc:
+        if isinstance(exc.__cause__, KeyboardInterrupt):   # click turns a signal outside _guard into Abort
+            interrupted(exc.__cause__)
         typer.echo("quenchwise: aborted", err=True)
         raise SystemExit(130) from None
     except KeyboardInterrupt as exc:   # a signal outside a command's guard (option parsing, the end)
