@@ -193,6 +193,14 @@ def _recover(real: Path) -> list[str]:
             continue
         shutil.rmtree(p, ignore_errors=True)
         notes.append(f"removed {p.name}" if not os.path.lexists(p) else f"could not remove {p}")
+    # Versions before publish.py staged in ".NAME.XXXXXXXX" (8 random characters): named, not
+    # removed, since such a name could also be the user's.
+    legacy = re.compile(r"\." + re.escape(real.name) + r"\.[a-z0-9_]{8}$")
+    try:
+        old_style = sorted(p for p in real.parent.iterdir() if legacy.match(p.name) and p.is_dir())
+    except OSError:
+        old_style = []
+    notes += [f"{p} looks like a staging folder of an earlier version; remove it if it is" for p in old_style]
     return notes
 
 

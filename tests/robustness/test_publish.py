@@ -275,3 +275,15 @@ def test_out_paths_that_cannot_hold_a_result(tmp_path, monkeypatch):
             publish.claim(bad, False, MARKERS)
         assert words in str(err.value) and "--out" in str(err.value), str(err.value)
     assert sorted(p.name for p in tmp_path.iterdir()) == ["file"]
+
+
+def test_staging_folders_of_earlier_versions_are_named(tmp_path, capsys):
+    """Before publish.py a killed run left '.NAME.XXXXXXXX' (mkdtemp) that no run removed: the next
+    run names it (it is not removed: such a name could be the user's)."""
+    out = tmp_path / "res"
+    (tmp_path / ".res.ab12cd_9").mkdir()
+    publish.claim(out, False, MARKERS)
+    publish.release_all()
+    err = capsys.readouterr().err
+    assert ".res.ab12cd_9 looks like a staging folder of an earlier version" in err
+    assert (tmp_path / ".res.ab12cd_9").is_dir()
