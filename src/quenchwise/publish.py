@@ -26,7 +26,6 @@ names per command), so a re-run never leaves a figure of the previous result bes
 
 from __future__ import annotations
 
-import ctypes
 import errno
 import json
 import os
@@ -109,6 +108,8 @@ _AT_FDCWD = -100
 
 def _exchange(a: Path, b: Path) -> bool:
     """Swap two paths atomically (Linux renameat2 RENAME_EXCHANGE); False where not supported."""
+    import ctypes    # here, not at the top: the module is imported before the signal handlers exist
+
     try:
         libc = ctypes.CDLL(None, use_errno=True)
         renameat2 = libc.renameat2
