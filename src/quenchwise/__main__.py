@@ -1,5 +1,28 @@
-"""`python -m quenchwise ...` runs the command line (same as the `quenchwise` script)."""
+"""`python -m quenchwise ...` runs the command line; `main` is also the `quenchwise` script.
 
-from .cli import entry
+The SIGINT / SIGTERM handlers go in before the heavy imports, so a signal during them ends with one
+line and the signal's status (130 / 143) too, not a traceback or a silent exit."""
 
-entry()
+import sys
+
+from .publish import fault, install_handlers
+
+
+def main() -> None:
+    install_handlers()
+    try:
+        fault("importing")      # tests: a signal at this instant lands in the imports below
+        from .cli import entry
+    except KeyboardInterrupt as exc:
+        import signal
+
+        signal.signal(signal.SIGINT, signal.SIG_IGN)
+        signal.signal(signal.SIGTERM, signal.SIG_IGN)
+        sys.stderr.write("quenchwise: interrupted while starting; no results were written and earlier "
+                         "results are untouched\n")
+        raise SystemExit(getattr(exc, "status", 130)) from None
+    entry()
+
+
+if __name__ == "__main__":
+    main()

@@ -1,18 +1,17 @@
 """Command line: one function per command, no physics here.
 
 Bad input of any kind ends with one line on stderr (file, key, value, what is allowed) and exit
-status 2; results are computed before anything is written, then put in place file by file with
-atomic renames, so existing results are never lost or half-replaced.
+status 2; results are computed before anything is written, then published as a whole folder by
+publish.py (lock per folder, staging folder, atomic swap), so existing results are never lost,
+mixed or half-replaced.
 """
 
 from __future__ import annotations
 
 import json
 import os
-import shutil
 import signal
 import sys
-import tempfile
 from contextlib import contextmanager
 from pathlib import Path
 from typing import Optional
@@ -20,6 +19,7 @@ from typing import Optional
 import typer
 
 from . import __version__
+from . import publish
 from .cautions import CAUTION
 from .errors import InputError
 
@@ -34,12 +34,7 @@ def _fail(message: str, code: int = 2) -> None:
     raise typer.Exit(code)
 
 
-class _Interrupted(KeyboardInterrupt):
-    """SIGINT or SIGTERM arrived; carries the exit status (128 + signal number)."""
-
-    def __init__(self, status: int):
-        super().__init__(status)
-        self.status = status
+_Interrupted = publish.Interrupted   # SIGINT or SIGTERM arrived; carries the exit status
 
 
 #: What the command is doing now, for the message an interrupt prints.
@@ -48,10 +43,10 @@ _doing = ["starting"]
 
 def _activity(text: str) -> None:
     _doing[0] = text
+    publish.fault(text)
 
 
-def _on_signal(signum, _frame):
-    raise _Interrupted(128 + signum)
+_on_signal = publish.on_signal
 
 
 @contextmanager
@@ -62,9 +57,7 @@ def _guard():
     -> 1 with the exception named (QUENCHWISE_DEBUG=1 shows the traceback)."""
     from .thermal.solver import SolverError
 
-    previous = {sig: signal.getsignal(sig) for sig in (signal.SIGINT, signal.SIGTERM)}
-    for sig in previous:
-        signal.signal(sig, _on_signal)
+    previous = publish.install_handlers()
     _activity("starting")
     try:
         yield
@@ -74,7 +67,10 @@ def _guard():
         _fail(f"solver stopped: {exc}", 1)
     except KeyboardInterrupt as exc:
         status = exc.status if isinstance(exc, _Interrupted) else 130
-        _fail(f"interrupted while {_doing[0]}; no results were written and earlier results are untouched", status)
+        for sig in publish.SIGNALS:   # a second signal must not cut the one line short
+            signal.signal(sig, signal.SIG_IGN)
+        _fail(f"interrupted while {_doing[0]}; " + publish.state_note(
+            "no results were written and earlier results are untouched"), status)
     except (typer.Exit, typer.Abort):
         raise
     except Exception as exc:  # noqa: BLE001 - the user gets one line, not a traceback
@@ -82,52 +78,26 @@ def _guard():
             raise
         _fail(f"internal error ({type(exc).__name__}: {exc}); please report it with the case file", 1)
     finally:
+        publish.release_all()
         for sig, handler in previous.items():
             signal.signal(sig, handler)
 
 
 def _check_out_dir(out: Path, overwrite: bool, markers: tuple = OUTPUT_MARKERS) -> None:
-    """Refuse a file as --out, and a folder that already holds this command's results (unless
-    --overwrite)."""
-    if out.exists() and not out.is_dir():
-        raise InputError("--out", str(out), "a folder path (this is a file)")
-    if out.is_dir() and not overwrite and any((out / m).exists() for m in markers):
-        raise InputError("--out", str(out), "a new or empty folder; add --overwrite to replace the results in it")
+    """Lock --out for this run (a second run into it: exit 2 naming the lock), clean up after killed
+    runs, refuse a file or an unwritable place, and a folder that already holds this command's
+    results (unless --overwrite). See publish.claim."""
+    publish.claim(out, overwrite, markers)
 
 
 @contextmanager
 def _staged(out: Path):
-    """A staging folder beside OUT; on success its files move into OUT one atomic rename each.
-
-    Usage: ``with _staged(out) as (staging, placed): write files into staging``; afterwards
-    ``placed`` lists the final paths. On any error the staging folder is removed and OUT is
-    untouched.
-    """
-    out.parent.mkdir(parents=True, exist_ok=True)
-    staging = Path(tempfile.mkdtemp(prefix=f".{out.name}.", dir=out.parent))
-    placed: list[Path] = []
-    try:
+    """``with _staged(out) as (staging, placed): write files into staging``; afterwards ``placed``
+    lists the final paths. The folder is published as a whole (publish.staged); on any error the
+    staging folder is removed and OUT is untouched."""
+    with publish.staged(out) as (staging, placed):
         _activity(f"writing results (staged in {staging.name})")
         yield staging, placed
-        # No signal may split the move: block them until every file is in place.
-        signal.pthread_sigmask(signal.SIG_BLOCK, {signal.SIGINT, signal.SIGTERM})
-        try:
-            placed.extend(_publish(staging, out))
-        finally:
-            signal.pthread_sigmask(signal.SIG_UNBLOCK, {signal.SIGINT, signal.SIGTERM})
-    finally:
-        shutil.rmtree(staging, ignore_errors=True)
-
-
-def _publish(staging: Path, out: Path) -> list[Path]:
-    """Move finished files from the staging folder into out, each by an atomic rename."""
-    out.mkdir(parents=True, exist_ok=True)
-    placed = []
-    for f in sorted(staging.iterdir()):
-        target = out / f.name
-        f.replace(target)
-        placed.append(target)
-    return placed
 
 
 class _Progress:
@@ -406,7 +376,7 @@ def band(
         _activity(f"solving {samples} sampled heats of {case_file}")
         with _Progress(not json_out, "sampling chemistry") as progress:
             b = band_run(case, samples, seed, progress)
-        q_hv, q_hrc = b.quantiles(b.hv), b.quantiles(b.hrc)
+        q_hv, q_hrc = b.quantiles(b.hv), b.hrc_quantiles()
         rows = [{"depth_mm": float(d), "hv_min": float(q_hv["min"][i]), "hv_median": float(q_hv["median"][i]),
                  "hv_max": float(q_hv["max"][i]), "hrc_min": float(q_hrc["min"][i]),
                  "hrc_median": float(q_hrc["median"][i]), "hrc_max": float(q_hrc["max"][i])}
@@ -418,8 +388,9 @@ def band(
         surface, centre = rows[0], rows[-1]
         lines = [f"{case.title or 'case'}: {case.grade} chemistry range, {samples} heats (seed {seed}), one batch",
                  f"{'':<10}{'HRC min':>9}{'median':>9}{'max':>9}",
-                 f"{'surface':<10}{_fmt(surface['hrc_min']):>9}{_fmt(surface['hrc_median']):>9}{_fmt(surface['hrc_max']):>9}",
-                 f"{'centre':<10}{_fmt(centre['hrc_min']):>9}{_fmt(centre['hrc_median']):>9}{_fmt(centre['hrc_max']):>9}"]
+                 *(_band_line(label, row) for label, row in (("surface", surface), ("centre", centre)))]
+        if any(not np.isfinite(r[f"hrc_{k}"]) for r in (surface, centre) for k in ("min", "median", "max")):
+            lines.append("HV: below HRC 20, where the Rockwell C scale ends (ASTM E140)")
         if share is not None:
             lines.append(f"share of heats meeting '{case.requirement.describe()}': {100 * share:.1f} %")
         lines.append("wrote   " + ", ".join(str(f) for f in files))
@@ -427,6 +398,15 @@ def band(
         _emit(json_out, {"title": case.title, "grade": case.grade, "samples": samples, "seed": seed,
                          "share_meeting_requirement": share, "profile": clean, "files": [str(f) for f in files]},
               "\n".join(lines))
+
+
+def _band_line(label: str, row: dict) -> str:
+    """HRC min / median / max at one position; HV where below HRC 20 (never 'nan')."""
+    ks = ("min", "median", "max")
+    if all(row[f"hrc_{k}"] != row[f"hrc_{k}"] for k in ks):
+        return f"{label:<10}below HRC 20 for every heat ({row['hv_min']:.0f}-{row['hv_max']:.0f} HV)"
+    cells = [f"{row[f'hrc_{k}']:.1f}" if row[f"hrc_{k}"] == row[f"hrc_{k}"] else f"{row[f'hv_{k}']:.0f} HV" for k in ks]
+    return f"{label:<10}" + "".join(f"{c:>9}" for c in cells)
 
 
 @app.command()
@@ -815,6 +795,7 @@ def entry() -> None:
         from click import exceptions as click_errors
 
     command = typer.main.get_command(app)
+    publish.install_handlers()   # until the process ends, not only inside a command
     try:
         status = command.main(prog_name="quenchwise", standalone_mode=False)
     except click_errors.NoArgsIsHelpError as exc:
@@ -828,10 +809,23 @@ def entry() -> None:
     except click_errors.ClickException as exc:
         typer.echo(f"quenchwise: {' '.join(exc.format_message().split())}", err=True)
         raise SystemExit(exc.exit_code) from None
-    except typer.Abort:
+    except typer.Abort as exc:
+        if isinstance(exc.__cause__, KeyboardInterrupt):   # click turns a signal outside _guard into Abort
+            interrupted(exc.__cause__)
         typer.echo("quenchwise: aborted", err=True)
         raise SystemExit(130) from None
+    except KeyboardInterrupt as exc:   # a signal outside a command's guard (option parsing, the end)
+        interrupted(exc)
     raise SystemExit(status if isinstance(status, int) else 0)
+
+
+def interrupted(exc: BaseException) -> None:
+    """One line and the status of the signal (130 SIGINT, 143 SIGTERM), for signals outside _guard."""
+    for sig in publish.SIGNALS:
+        signal.signal(sig, signal.SIG_IGN)
+    sys.stderr.write(f"quenchwise: interrupted while {_doing[0]}; "
+                     + publish.state_note("no results were written and earlier results are untouched") + "\n")
+    raise SystemExit(getattr(exc, "status", 130)) from None
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -44,8 +44,25 @@ class Band:
     seed: int
 
     def quantiles(self, values: np.ndarray) -> dict:
-        return {"min": np.nanmin(values, axis=0), "median": np.nanmedian(values, axis=0),
-                "max": np.nanmax(values, axis=0)}
+        """min, median and max over the heats at each depth; NaN (no warning) where every heat is NaN."""
+        v = np.asarray(values, dtype=float)
+        some = np.isfinite(v).any(axis=0)
+        out = {}
+        for name, f in (("min", np.nanmin), ("median", np.nanmedian), ("max", np.nanmax)):
+            q = np.full(v.shape[1], np.nan)
+            if some.any():
+                q[some] = f(np.where(np.isfinite(v), v, np.nan)[:, some], axis=0)
+            out[name] = q
+        return out
+
+    def hrc_quantiles(self) -> dict:
+        """HRC of the HV quantiles (the ASTM E140 conversion is monotonic, so the HRC of the softest
+        heat is the softest HRC): NaN where that heat is below HRC 20, which the HV then tells. Taking
+        quantiles of the HRC values themselves would drop the heats below HRC 20 and overstate the
+        minimum."""
+        from ..hardness import hrc_from_hv
+
+        return {k: hrc_from_hv(v) for k, v in self.quantiles(self.hv).items()}
 
     def share_meeting(self) -> float | None:
         req = self.case.requirement
@@ -57,6 +74,10 @@ class Band:
 def band(case: Case, samples: int = DEFAULT_SAMPLES, seed: int = 1,
          progress: Callable[[float], None] | None = None) -> Band:
     """Sample the grade's chemistry range and simulate every sample in one batch."""
+    if isinstance(seed, bool) or not isinstance(seed, (int, np.integer)) or not 0 <= seed < 2**63:
+        raise InputError("--seed", seed, "a whole number from 0 to 2**63 - 1")
+    if isinstance(samples, bool) or not isinstance(samples, (int, np.integer)) or not 2 <= samples <= 5000:
+        raise InputError("--samples", samples, "a whole number from 2 to 5000")
     if case.grade is None:
         raise InputError("steel.grade", "(missing)", "a built-in grade with specification ranges (see `quenchwise steels`)")
     grade = find_grade(case.grade)

@@ -93,6 +93,10 @@ def _add_hardness_extras(result: Result) -> None:
     case, state = result.case, result.state
     di = a255_ideal_diameter(case.composition)
     result.extra["di"] = {"a255": di.as_dict()}
+    # Models far outside their range give numbers that are not credible: say so on the result.
+    from ..sanity import result_warnings
+
+    result.extra.setdefault("warnings", []).extend(result_warnings(result))
     temper = getattr(case, "temper", None)
     if temper is None or case.model == "none":
         return
