@@ -42,7 +42,7 @@ def test_profile_csv_result_h5_and_summary_carry_the_equivalent_distance(tmp_pat
     from quenchwise.workflows import simulate
 
     text = ('title = "t"\n[steel]\ngrade = "4140"\n[part]\nshape = "bar"\ndiameter_mm = 40\n'
-            '[quench]\nmedium = "oil_conventional_60c_moderate"\nend_c = 150\n')
+            '[quench]\nseverity_h = 0.5\nend_c = 150\n')
     r = simulate([parse_case(tomllib.loads(text), text, "t.toml")])[0]
     write_profile_csv(r, tmp_path / "profile.csv")
     write_result_h5(r, tmp_path / "result.h5")
@@ -54,4 +54,7 @@ def test_profile_csv_result_h5_and_summary_carry_the_equivalent_distance(tmp_pat
     h5 = read_result_h5(tmp_path / "result.h5")
     np.testing.assert_allclose(h5["jominy_distance_mm"], r.jominy_distance_mm, equal_nan=True)
     surface, _, centre = r.summary()["points"]
-    assert surface["jominy_distance_mm"] < centre["jominy_distance_mm"]   # the surface cools faster
+    # With a constant h the surface passes 700 C fastest (the premise of the trade's
+    # equivalence charts, common practice, no source). A real oil curve need not: its vapour blanket can hold the surface to a slow
+    # rate at 700 C while the interior passes 700 C later, in the boiling stage.
+    assert surface["jominy_distance_mm"] < centre["jominy_distance_mm"]
