@@ -40,9 +40,10 @@ def phase_hardness_warnings(fractions: dict, rate_700_c_s, chem: dict, depth_mm=
 
     >>> chem = dict(c=0.40, mn=0.8, si=0.25, v=1.0)
     >>> f = {"ferrite": np.array([0.7]), "pearlite": np.array([0.3]), "martensite": np.array([0.0])}
-    >>> # 42 + 223(0.4) + 53(0.25) + 30(0.8) + log10(25 x 3600)(10 - 19(0.25) + 130(1.0)) = 839 HV
+    >>> # Maynier: 42 + 223(0.4) + 53(0.25) + 30(0.8) + log10(25 x 3600)(10 - 19(0.25) + 130(1.0))
+    >>> # = 839 HV, plus the pearlite cooling-rate correction of hardness.phases: 900 HV
     >>> print(*phase_hardness_warnings(f, np.array([25.0]), chem))  # doctest: +ELLIPSIS
-    ferrite-pearlite at 0 mm depth would be 839 HV by Maynier et al. (1978), harder than the martensite ...
+    ferrite-pearlite at 0 mm depth would be 900 HV by the hardness relations (Maynier et al. 1978), harder than the martensite ...
     >>> phase_hardness_warnings(f, np.array([25.0]), dict(c=0.40, mn=0.8, si=0.25))
     []
     """
@@ -66,7 +67,7 @@ def phase_hardness_warnings(fractions: dict, rate_700_c_s, chem: dict, depth_mm=
         bad = ok & (share >= PRESENT) & (phase_hv > limit)
         if bad.any():
             j = int(np.flatnonzero(bad)[np.argmax(phase_hv[bad])])
-            out.append(f"{name} at {depth[j]:.3g} mm depth would be {phase_hv[j]:.0f} HV by Maynier et al. (1978), "
+            out.append(f"{name} at {depth[j]:.3g} mm depth would be {phase_hv[j]:.0f} HV by the hardness relations (Maynier et al. 1978), "
                        f"harder than {what} ({limit[j]:.0f} HV): {why}")
     return out
 

@@ -54,7 +54,7 @@ def test_profile_csv_result_h5_and_summary_carry_the_equivalent_distance(tmp_pat
     h5 = read_result_h5(tmp_path / "result.h5")
     np.testing.assert_allclose(h5["jominy_distance_mm"], r.jominy_distance_mm, equal_nan=True)
     surface, _, centre = r.summary()["points"]
-    # With a constant h the surface passes 700 C fastest (the premise of the trade's
-    # equivalence charts, common practice, no source). A real oil curve need not: its vapour blanket can hold the surface to a slow
-    # rate at 700 C while the interior passes 700 C later, in the boiling stage.
+    # With a constant h the surface passes 700 C fastest (the premise of the trade's equivalence
+    # charts, common practice, no source). A real oil curve need not: its vapour blanket can hold
+    # the surface to a slow rate at 700 C while the interior passes 700 C later, while boiling.
     assert surface["jominy_distance_mm"] < centre["jominy_distance_mm"]
