@@ -15,7 +15,7 @@ import matplotlib.pyplot as plt  # noqa: E402
 import numpy as np  # noqa: E402
 
 from .cautions import SHORT_CAUTION  # noqa: E402
-from .hardness import hv_from_hrc  # noqa: E402
+from .hardness import hrc_from_hv, hv_from_hrc  # noqa: E402
 
 POINT_COLOURS = ("#1d3557", "#c77d1a", "#a4343a")
 INK = "#1d3557"
@@ -55,59 +55,215 @@ def add_hrc_scale(ax, label: str = "HRC (ASTM E140)"):
     return right
 
 
-def hardness_figure(result, out_dir: Path) -> list[Path]:
-    """Hardness vs depth below the quenched surface: HRC where the scale applies, HV always."""
+# -- hardness axes: the drawing's scale first, a minimum span, both scales ticked -------------------
+#: Smallest hardness span drawn, so that a flat profile looks flat (20 HRC; in HV about the same
+#: height at mid hardness).
+MIN_HRC_SPAN = 20.0
+MIN_HV_SPAN = 200.0
+HV_AT_HRC20 = float(hv_from_hrc(20.0))
+
+
+def hardness_scale(*hv_arrays) -> str:
+    """'HRC' when every finite value is inside the Rockwell C range (HRC 20 and up, ASTM E140), else
+    'HV' (Vickers applies everywhere; the right-hand scale then shows HRC or HRB where they apply).
+
+    >>> hardness_scale(np.array([630.0, 700.0])), hardness_scale(np.array([630.0, 200.0]))
+    ('HRC', 'HV')
+    """
+    vals = np.concatenate([np.ravel(np.asarray(a, dtype=float)) for a in hv_arrays if a is not None])
+    vals = vals[np.isfinite(vals)]
+    return "HRC" if vals.size and float(vals.min()) >= HV_AT_HRC20 - 1e-9 else "HV"
+
+
+def in_scale(hv, scale: str):
+    """HV values expressed in the plotting scale."""
+    return hrc_from_hv(hv) if scale == "HRC" else np.asarray(hv, dtype=float)
+
+
+def smooth_profile(depth_mm, values, n: int = 300):
+    """(x, y) for drawing a profile through the cell-centre values: a monotone cubic (PCHIP,
+    Fritsch & Carlson 1980) interpolant, so coarse interior cells give no kinks or stair-steps and
+    no overshoot between nodes; drawn only between the first and last node (no extrapolation).
+
+    >>> x, y = smooth_profile(np.array([2.0, 0.0, 1.0]), np.array([3.0, 1.0, 2.0]), n=5)
+    >>> [round(float(v), 3) for v in y]
+    [1.0, 1.5, 2.0, 2.5, 3.0]
+    """
+    from scipy.interpolate import PchipInterpolator
+
+    d = np.asarray(depth_mm, dtype=float)
+    v = np.asarray(values, dtype=float)
+    o = np.argsort(d, kind="stable")
+    d, v = d[o], v[o]
+    ok = np.isfinite(v)
+    if ok.sum() < 3:
+        return d, v
+    d, v = d[ok], v[ok]
+    keep = np.concatenate([[True], np.diff(d) > 0])
+    d, v = d[keep], v[keep]
+    x = np.linspace(d[0], d[-1], n)
+    return x, PchipInterpolator(d, v)(x)
+
+
+def _nice_step(span: float, target: int = 6) -> float:
+    raw = span / max(target, 1)
+    mag = 10 ** np.floor(np.log10(raw))
+    return float(min((m * mag for m in (1, 2, 2.5, 5, 10) if m * mag >= raw), default=10 * mag))
+
+
+def finish_hardness_axis(ax, scale: str, values, label: str | None = None):
+    """Limits with the minimum span (centred on the data), the main label, and a right-hand axis
+    ticked in the other scale (HV when HRC is the main scale; HRC where it applies, else HRB, when
+    HV is). values: the drawn values in the main scale. Returns the right-hand axis."""
+    from .hardness import hrb_from_hv
+
+    v = np.asarray(values, dtype=float)
+    v = v[np.isfinite(v)]
+    lo, hi = (float(v.min()), float(v.max())) if v.size else (40.0, 60.0)
+    span = MIN_HRC_SPAN if scale == "HRC" else MIN_HV_SPAN
+    pad = 0.08 * (hi - lo)
+    lo, hi = lo - pad, hi + pad
+    if hi - lo < span:
+        mid = 0.5 * (lo + hi)
+        lo, hi = mid - span / 2, mid + span / 2
+    if scale == "HRC":
+        if hi > 70.0:
+            lo, hi = lo - (hi - 70.0), 70.0
+        if lo < 20.0:
+            lo, hi = 20.0, min(hi + (20.0 - lo), 70.0)
+    elif lo < 0.0:
+        lo, hi = 0.0, hi - lo
+    ax.set_ylim(lo, hi)
+    ax.set_ylabel(label or ("Rockwell C hardness HRC" if scale == "HRC" else "Vickers hardness HV"), color=INK)
+    right = ax.twinx()
+    right.set_ylim(lo, hi)
+    if scale == "HRC":
+        hv_lo, hv_hi = (float(hv_from_hrc(min(max(x, 20.0), 68.0))) for x in (lo, hi))
+        step = _nice_step(hv_hi - hv_lo)
+        ticks = np.arange(np.ceil(hv_lo / step) * step, hv_hi + 1e-9, step)
+        pos = hrc_from_hv(ticks)
+        ok = np.isfinite(pos)
+        right.set_yticks(pos[ok])
+        right.set_yticklabels([f"{t:.0f}" for t in ticks[ok]])
+        right.set_ylabel("Vickers HV (ASTM E140)", color="#666666")
+        return right
+    hrc = np.arange(20.0, 69.0, 1.0)
+    pos = hv_from_hrc(hrc)
+    inside = (pos >= lo) & (pos <= hi)
+    if inside.sum() >= 2:
+        step = int(max(1, _nice_step(float(np.ptp(hrc[inside])) or 1.0, 5)))
+        sel = inside & (hrc % step == 0)
+        right.set_yticks(pos[sel])
+        right.set_yticklabels([f"{t:.0f}" for t in hrc[sel]])
+        right.set_ylabel("Rockwell C HRC (ASTM E140)", color="#666666")
+        return right
+    grid = np.linspace(max(lo, 1.0), hi, 400)
+    hrb = hrb_from_hv(grid)
+    ok = np.isfinite(hrb)
+    if ok.sum() >= 2:
+        b_lo, b_hi = float(hrb[ok].min()), float(hrb[ok].max())
+        step = _nice_step(b_hi - b_lo, 5)
+        ticks = np.arange(np.ceil(b_lo / step) * step, b_hi + 1e-9, step)
+        right.set_yticks(np.interp(ticks, hrb[ok], grid[ok]))
+        right.set_yticklabels([f"{t:.0f}" for t in ticks])
+        right.set_ylabel("Rockwell B HRB (ASTM E140)", color="#666666")
+    else:
+        right.set_yticks([])
+        right.set_ylabel("(HRC, HRB do not apply here)", color="#666666")
+    return right
+
+
+def requirement_line(ax, req, scale: str, total_mm: float, colour: str = "#c77d1a", length=None) -> None:
+    """The drawing's requirement, drawn only down to its depth (through the section when it asks
+    for the centre) and ended by a short vertical tick at that depth."""
+    if req is None or req.min_hrc is None:
+        return
+    y = req.min_hrc if scale == "HRC" else float(hv_from_hrc(req.min_hrc))
+    depth = total_mm if req.depth_mm is None else req.depth_mm
+    x = depth if length is None else length(depth)
+    ax.plot([0.0, x], [y, y], color=colour, lw=1.6, label=f"required: {req.describe()}", zorder=4)
+    ax.plot([x, x], [y - 0.03 * np.ptp(ax.get_ylim()), y + 0.03 * np.ptp(ax.get_ylim())], color=colour, lw=1.6,
+            zorder=4)
+
+
+def _units(units):
+    from .units import Units
+
+    return units if units is not None else Units("si")
+
+
+def hardness_figure(result, out_dir: Path, units=None) -> list[Path]:
+    """Hardness vs depth below the quenched surface, in HRC where it applies everywhere (else HV),
+    the other scale on the right; the line is a PCHIP interpolation through the cell-centre values
+    (the dots)."""
+    u = _units(units)
     depth = result.depth_mm
-    order = np.argsort(depth)
-    fig, ax = plt.subplots(figsize=(7.0, 4.4))
-    fig.subplots_adjust(bottom=0.2, right=0.86)
-    ax.plot(depth[order], result.hv[order], color=INK, lw=2.0, label="HV (as quenched)")
     tempered = getattr(result, "hv_tempered", None)
+    scale = hardness_scale(result.hv, tempered)
+    total = result.history.section.thickness_m * 1000.0
+    fig, ax = plt.subplots(figsize=(7.0, 4.6))
+    fig.subplots_adjust(bottom=0.2, right=0.86, top=0.8)
+    curves = [(result.hv, "as quenched", "-", 2.0)]
     if tempered is not None:
         t = result.extra.get("temper", {})
-        ax.plot(depth[order], tempered[order], color=INK, lw=1.6, ls="--",
-                label=f"HV after {t.get('hours', 0):g} h at {t.get('temperature_c', 0):g} C")
-        ax.set_ylim(min(ax.get_ylim()[0], float(np.nanmin(tempered)) - 20.0), ax.get_ylim()[1])
-    ax.set_xlabel("depth below quenched surface [mm]")
-    ax.set_ylabel("Vickers hardness HV", color=INK)
+        curves.append((tempered, f"after {t.get('hours', 0):g} h at {u.fmt_temperature(t.get('temperature_c', 0))}",
+                       "--", 1.8))
+    drawn = []
+    for hv, label, style, width in curves:
+        y = in_scale(hv, scale)
+        x, ys = smooth_profile(depth, y)
+        ax.plot(u.length(1.0) * x, ys, color=INK, lw=width, ls=style, label=label)
+        ax.plot(u.length(1.0) * depth, y, ls="none", marker="o", ms=2.2, color=INK, alpha=0.6)
+        drawn.append(y)
+    req = result.case.requirement
+    ax.set_xlim(0, u.length(total))
+    ax.set_xlabel(f"depth below the quenched surface [{u.length_unit}]")
     ax.grid(True, color="#e5e5e5", lw=0.6)
-    ax.set_xlim(0, result.history.section.thickness_m * 1000.0)
-    add_hrc_scale(ax)
-    hv_hi = ax.get_ylim()[1]
+    finish_hardness_axis(ax, scale, np.concatenate(drawn + ([np.array([req.min_hrc if scale == "HRC" else
+                                                                       float(hv_from_hrc(req.min_hrc))])]
+                                                             if req is not None and req.min_hrc is not None else [])))
+    requirement_line(ax, req, scale, total, length=u.length)
+    lo, hi = ax.get_ylim()
     for (label, r), colour in zip(result.points(), POINT_COLOURS):
-        d = (result.history.section.outer_m - r) * 1000.0
+        d = u.length((result.history.section.outer_m - r) * 1000.0)
         ax.axvline(d, color=colour, lw=0.8, ls=":")
-        ax.annotate(label, (d, hv_hi), xytext=(2, -10), textcoords="offset points", fontsize=7, color=colour)
-    ax.set_title(f"{result.case.title or 'case'}: hardness profile", fontsize=10, loc="left")
-    if tempered is not None:
-        ax.legend(frameon=False, fontsize=8, loc="center left")
+        ax.annotate(label, (d, lo), xytext=(3 if d < 0.9 * u.length(total) else -3, 3), textcoords="offset points",
+                    fontsize=7, color=colour, ha="left" if d < 0.9 * u.length(total) else "right")
+    fig.text(0.125, 0.945, f"{result.case.title or 'case'}: hardness profile", fontsize=10, ha="left")
+    ax.legend(frameon=False, fontsize=7.5, loc="lower left", bbox_to_anchor=(0.0, 1.0), ncol=3,
+              title="line: PCHIP through the cell values (dots)", title_fontsize=6.5, alignment="left")
     _footer(fig, SHORT_CAUTION)
     return _save(fig, out_dir, "hardness")
 
 
-def cooling_figure(result, out_dir: Path) -> list[Path]:
-    """Temperature vs time (log) at surface, half radius and centre, with Ae3, Ae1, Bs and Ms."""
+def cooling_figure(result, out_dir: Path, units=None) -> list[Path]:
+    """Temperature vs time (log) at surface, half radius and centre, with Ae3, Ae1 and Ms labelled
+    inside the frame at the right, where the curves have long passed them."""
+    u = _units(units)
     h = result.history
     t = np.maximum(h.time_s, 1e-3)
     fig, ax = plt.subplots(figsize=(7.0, 4.4))
-    fig.subplots_adjust(bottom=0.2, right=0.86)
+    fig.subplots_adjust(bottom=0.2, right=0.95)
     for (label, r), colour in zip(result.points(), POINT_COLOURS):
         j = int(np.argmin(np.abs(h.radius_m - r)))
-        ax.plot(t[1:], h.temperature_c[1:, j], color=colour, lw=1.8, label=label)
+        ax.plot(t[1:], [u.temperature(v) for v in h.temperature_c[1:, j]], color=colour, lw=1.8, label=label)
     ax.set_xscale("log")
     ax.set_xlabel("time since immersion [s]")
-    ax.set_ylabel("temperature [C]")
+    ax.set_ylabel(f"temperature [{u.temp_unit}]")
     ax.grid(True, which="both", color="#eeeeee", lw=0.5)
     state = result.state
     lines = [("Ae3" if not state.hypereutectoid else "Acm", state.upper_critical), ("Ae1", state.ae1),
              ("Ms", result.ms_c)]
-    x_right = t[-1]
+    ax.set_xlim(t[1], t[-1])
+    top = max([float(np.max(h.temperature_c))] + [v for _, v in lines if v is not None and np.isfinite(v)])
+    ax.set_ylim(top=u.temperature(top + 45.0))  # room above the highest level's label
     for name, value in lines:
         if value is not None and np.isfinite(value):
-            ax.axhline(value, color="#8d8d8d", lw=0.8, ls="-.")
-            ax.annotate(f"{name} {value:.0f} C", (x_right, value), xytext=(4, 0), textcoords="offset points",
-                        fontsize=7, color="#666666", va="center", annotation_clip=False)
-    ax.legend(frameon=False, fontsize=8, loc="lower left")
+            y = u.temperature(value)
+            ax.axhline(y, color="#8d8d8d", lw=0.8, ls="-.")
+            ax.annotate(f"{name} {y:.0f} {u.temp_unit}", (t[-1], y), xytext=(-4, 2), textcoords="offset points",
+                        fontsize=7, color="#555555", ha="right", va="bottom")
+    ax.legend(frameon=False, fontsize=8, loc="center left")  # early times, below the start: no data there
     ax.set_title(f"{result.case.title or 'case'}: cooling curves", fontsize=10, loc="left")
     _footer(fig, SHORT_CAUTION)
     return _save(fig, out_dir, "cooling")
