@@ -149,7 +149,7 @@ def models_used(case) -> list[str]:
         out.append("phase hardness: Maynier, Jungmann & Dollet (1978); scales: ASTM E140")
         if case.temper is not None:
             out.append("tempering: Hollomon & Jaffe (1945) parameter, Grange, Hribal & Porter (1977) "
-                       "tempered martensite; below 205 C low-temperature relation (hardness/tempering.py)")
+                       "tempered martensite; first-stage drop of high-carbon martensite written to the handbook 52100 and 1095 tempering response (hardness/tempering.py)")
     out.append("heat conduction: FiPy finite volumes, temperature- and phase-dependent properties")
     return out
 
@@ -339,9 +339,10 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
         text.append("Notes: " + record["notes"])
     body = "\n".join(textwrap.fill(t, 170) for t in text)
     foot.text(0.0, 1.0, body, fontsize=5.6, va="top", linespacing=1.25)
-    foot.text(0.0, 0.27, f"Case file {case.source_name or '-'}\nSHA-256 {case.source_sha256}", fontsize=6,
-              va="top", family="monospace")
-    foot.text(0.0, 0.1, textwrap.fill(CAUTION, 165), fontsize=5.6, va="top", color="#7a1f1f")
+    # Anchored at the bottom, so long model / warning text above can never push them off the page.
+    foot.text(0.0, 0.0, textwrap.fill(CAUTION, 165), fontsize=5.6, va="bottom", color="#7a1f1f")
+    foot.text(0.0, 0.2, f"Case file {case.source_name or '-'}\nSHA-256 {case.source_sha256}", fontsize=6,
+              va="bottom", family="monospace")
 
     out_dir = Path(out_dir)
     paths = []
