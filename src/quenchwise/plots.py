@@ -173,7 +173,8 @@ def finish_hardness_axis(ax, scale: str, values, label: str | None = None):
     return right
 
 
-def requirement_line(ax, req, scale: str, total_mm: float, colour: str = "#c77d1a", length=None) -> None:
+def requirement_line(ax, req, scale: str, total_mm: float, colour: str = "#c77d1a", length=None,
+                     wrap: int | None = None) -> None:
     """The drawing's requirement, drawn only down to its depth (through the section when it asks
     for the centre) and ended by a short vertical tick at that depth."""
     if req is None or req.min_hrc is None:
@@ -181,7 +182,12 @@ def requirement_line(ax, req, scale: str, total_mm: float, colour: str = "#c77d1
     y = req.min_hrc if scale == "HRC" else float(hv_from_hrc(req.min_hrc))
     depth = total_mm if req.depth_mm is None else req.depth_mm
     x = depth if length is None else length(depth)
-    ax.plot([0.0, x], [y, y], color=colour, lw=1.6, label=f"required: {req.describe()}", zorder=4)
+    label = f"required: {req.describe()}"
+    if wrap:
+        import textwrap
+
+        label = textwrap.fill(label, wrap)
+    ax.plot([0.0, x], [y, y], color=colour, lw=1.6, label=label, zorder=4)
     ax.plot([x, x], [y - 0.03 * np.ptp(ax.get_ylim()), y + 0.03 * np.ptp(ax.get_ylim())], color=colour, lw=1.6,
             zorder=4)
 
@@ -270,36 +276,45 @@ def cooling_figure(result, out_dir: Path, units=None) -> list[Path]:
 
 
 def compare_figures(comparison, out_dir: Path) -> list[Path]:
-    """Overlay of hardness profiles and of centre cooling curves, one line per quenchant."""
+    """Overlay of hardness profiles and of centre cooling curves, one line per quenchant; the
+    legends sit outside the plotting area, the requirement stops at its depth."""
     from .workflows.requirement import final_hv
 
     palette = ("#1d3557", "#c77d1a", "#a4343a", "#2a9d8f", "#6d597a", "#8a817c", "#e9c46a", "#264653")
     paths = []
-    fig, ax = plt.subplots(figsize=(7.0, 4.4))
-    fig.subplots_adjust(bottom=0.2)
-    for i, (m, r) in enumerate(zip(comparison.media, comparison.results)):
-        o = np.argsort(r.depth_mm)
-        ax.plot(r.depth_mm[o], final_hv(r)[o], color=palette[i % len(palette)], lw=1.8, label=m.name)
+    hvs = [final_hv(r) for r in comparison.results]
+    scale = hardness_scale(*hvs)
+    total = comparison.case.section.thickness_m * 1000.0
+    fig, ax = plt.subplots(figsize=(8.6, 4.6))
+    fig.subplots_adjust(bottom=0.2, right=0.62, left=0.09)
+    drawn = []
+    for i, (m, r, hv) in enumerate(zip(comparison.media, comparison.results, hvs)):
+        y = in_scale(hv, scale)
+        x, ys = smooth_profile(r.depth_mm, y)
+        ax.plot(x, ys, color=palette[i % len(palette)], lw=1.8, label=m.name)
+        drawn.append(y)
     req = comparison.case.requirement
     if req is not None and req.min_hrc is not None:
-        ax.axhline(float(hv_from_hrc(req.min_hrc)), color="#555555", lw=1.0, ls="--", label=f"{req.min_hrc:g} HRC required")
-    ax.set_xlabel("depth below quenched surface [mm]")
-    ax.set_ylabel("HV")
+        drawn.append(np.array([req.min_hrc if scale == "HRC" else float(hv_from_hrc(req.min_hrc))]))
+    ax.set_xlim(0, total)
+    ax.set_xlabel("depth below the quenched surface [mm]")
     ax.grid(True, color="#e5e5e5", lw=0.6)
-    ax.legend(frameon=False, fontsize=7.5)
+    finish_hardness_axis(ax, scale, np.concatenate(drawn))
+    requirement_line(ax, req, scale, total, colour="#555555", wrap=32)
+    ax.legend(frameon=False, fontsize=7.5, loc="upper left", bbox_to_anchor=(1.13, 1.0))
     ax.set_title(f"{comparison.case.title or 'case'}: hardness by quenchant", fontsize=10, loc="left")
     _footer(fig, SHORT_CAUTION)
     paths += _save(fig, out_dir, "compare_hardness")
-    fig, ax = plt.subplots(figsize=(7.0, 4.4))
-    fig.subplots_adjust(bottom=0.2)
+    fig, ax = plt.subplots(figsize=(8.6, 4.6))
+    fig.subplots_adjust(bottom=0.2, right=0.66, left=0.09)
     for i, (m, r) in enumerate(zip(comparison.media, comparison.results)):
         h = r.history
         ax.plot(np.maximum(h.time_s[1:], 1e-3), h.temperature_c[1:, 0], color=palette[i % len(palette)], lw=1.6, label=m.name)
     ax.set_xscale("log")
     ax.set_xlabel("time since immersion [s]")
-    ax.set_ylabel("centre temperature [C]")
+    ax.set_ylabel("centre temperature [°C]")
     ax.grid(True, which="both", color="#eeeeee", lw=0.5)
-    ax.legend(frameon=False, fontsize=7.5)
+    ax.legend(frameon=False, fontsize=7.5, loc="upper left", bbox_to_anchor=(1.02, 1.0))
     ax.set_title(f"{comparison.case.title or 'case'}: centre cooling by quenchant", fontsize=10, loc="left")
     _footer(fig, SHORT_CAUTION)
     paths += _save(fig, out_dir, "compare_cooling")
@@ -307,31 +322,48 @@ def compare_figures(comparison, out_dir: Path) -> list[Path]:
 
 
 def band_figure(band, out_dir: Path) -> list[Path]:
-    """Min-median-max hardness over the sampled chemistry range."""
+    """Min-median-max hardness over the sampled chemistry range (HRC where it applies)."""
+    from matplotlib.patches import Patch
+
     q = band.quantiles(band.hv)
-    fig, ax = plt.subplots(figsize=(7.0, 4.4))
-    fig.subplots_adjust(bottom=0.2)
-    ax.fill_between(band.depth_mm, q["min"], q["max"], color="#c9d6e3", label=f"min-max of {len(band.results)} heats")
-    ax.plot(band.depth_mm, q["median"], color=INK, lw=2.0, label="median")
+    scale = hardness_scale(q["min"], q["max"])
+    lo, med, hi = (in_scale(q[k], scale) for k in ("min", "median", "max"))
+    total = band.case.section.thickness_m * 1000.0
+    fig, ax = plt.subplots(figsize=(7.4, 4.8))
+    fig.subplots_adjust(bottom=0.2, right=0.86, top=0.78)
+    ax.fill_between(band.depth_mm, lo, hi, color="#c9d6e3", lw=0)
+    ax.plot(band.depth_mm, lo, color="#7d93ab", lw=0.8)
+    ax.plot(band.depth_mm, hi, color="#7d93ab", lw=0.8)
+    ax.plot(band.depth_mm, med, color=INK, lw=2.0, label="median")
     req = band.case.requirement
-    if req is not None and req.min_hrc is not None:
-        ax.axhline(float(hv_from_hrc(req.min_hrc)), color="#c77d1a", lw=1.2, ls="--", label=f"{req.min_hrc:g} HRC required")
-    ax.set_xlabel("depth below quenched surface [mm]")
-    ax.set_ylabel("HV")
+    drawn = [lo, hi] + ([np.array([req.min_hrc if scale == "HRC" else float(hv_from_hrc(req.min_hrc))])]
+                        if req is not None and req.min_hrc is not None else [])
+    ax.set_xlim(0, total)
+    ax.set_xlabel("depth below the quenched surface [mm]")
     ax.grid(True, color="#e5e5e5", lw=0.6)
-    ax.legend(frameon=False, fontsize=8)
-    ax.set_title(f"{band.case.title or 'case'}: hardness over the {band.case.grade} chemistry range (seed {band.seed})",
-                 fontsize=9.5, loc="left")
+    finish_hardness_axis(ax, scale, np.concatenate(drawn))
+    requirement_line(ax, req, scale, total)
+    handles, labels = ax.get_legend_handles_labels()
+    handles.insert(0, Patch(fc="#c9d6e3", ec="#7d93ab", lw=0.8))
+    labels.insert(0, f"min-max of {len(band.results)} heats")
+    ax.legend(handles, labels, frameon=False, fontsize=7.5, loc="lower left", bbox_to_anchor=(0.0, 1.0), ncol=3)
+    fig.text(0.125, 0.955, f"{band.case.title or 'case'}", fontsize=10, ha="left")
+    fig.text(0.125, 0.915, f"hardness over the {band.case.grade} chemistry range, {len(band.results)} sampled heats "
+             f"(seed {band.seed})", fontsize=8.5, ha="left", color="#444444")
     _footer(fig, SHORT_CAUTION)
     return _save(fig, out_dir, "band")
 
 
 def sizing_figure(answer, out_dir: Path) -> list[Path]:
     """Requirement margin against severity and against size, from every solved case."""
-    fig, (a, b) = plt.subplots(1, 2, figsize=(9.0, 4.0))
-    fig.subplots_adjust(bottom=0.22, wspace=0.3)
+    from matplotlib.lines import Line2D
+
+    fig, (a, b) = plt.subplots(1, 2, figsize=(9.0, 4.3))
+    fig.subplots_adjust(bottom=0.27, wspace=0.3, top=0.88)
     unit = "HV" if answer.requirement.min_hrc is not None else "% martensite"
-    for ax, bracket, xlabel in ((a, answer.severity, "Grossmann H [1/in]"), (b, answer.size, f"{answer.size_label} [mm]")):
+    dimension = answer.size_label.replace("_mm", "").replace("_", " ")
+    for ax, bracket, xlabel in ((a, answer.severity, "constant severity, Grossmann H [1/in]"),
+                                (b, answer.size, f"{dimension} [mm]")):
         pts = sorted(bracket.evaluated)
         if pts:
             x, y = zip(*pts)
@@ -341,11 +373,17 @@ def sizing_figure(answer, out_dir: Path) -> list[Path]:
             ax.axvline(bracket.passing, color="#c77d1a", lw=1.0, ls="--")
         ax.set_xscale("log")
         ax.set_xlabel(xlabel)
-        ax.set_ylabel(f"margin to requirement [{unit}]")
+        ax.set_ylabel(f"margin to the requirement [{unit}]")
         ax.grid(True, which="both", color="#eeeeee", lw=0.5)
-    a.set_title("mildest severity", fontsize=9, loc="left")
+    a.set_title("mildest constant severity", fontsize=9, loc="left")
     b.set_title("largest section in the case's quenchant", fontsize=9, loc="left")
-    _footer(fig, SHORT_CAUTION)
+    fig.legend(handles=[Line2D([], [], color=INK, marker="o", ms=3, lw=1.2, label="solved cases"),
+                        Line2D([], [], color="#a4343a", lw=1.0, label="requirement just met"),
+                        Line2D([], [], color="#c77d1a", lw=1.0, ls="--", label="answer")],
+               loc="lower center", bbox_to_anchor=(0.5, 0.07), ncol=3, frameon=False, fontsize=7.5)
+    fig.text(0.5, 0.955, f"{answer.case.title or 'case'}: {answer.requirement.describe()}", ha="center", fontsize=9.5)
+    _footer(fig, "A constant severity is one h for the whole quench; real quenchants differ (see the text output). "
+            + SHORT_CAUTION)
     return _save(fig, out_dir, "sizing")
 
 

@@ -146,9 +146,9 @@ def size_text(title: str, d: dict, medium_name: str, files: list) -> str:
              "real quenchant curves that meet it, mildest first: "
              + (", ".join(with_h(n) for n in d["quenchants_meeting"]) or "none"),
              "real curves that do not: " + (", ".join(with_h(q["medium"]) for q in failing) or "none"),
-             (f"largest {big['dimension']} in {medium_name}: {big['largest_passing_mm']:g} mm "
+             (f"largest {big['dimension'].replace('_mm', '')} in {medium_name}: {big['largest_passing_mm']:g} mm "
               + (f"({big['next_larger_failing_mm']:g} mm does not meet it)" if big["next_larger_failing_mm"] else "(largest tried)")
-              if big["largest_passing_mm"] is not None else f"no {big['dimension']} tried meets it in {medium_name}")
+              if big["largest_passing_mm"] is not None else f"no {big['dimension'].replace('_mm', '')} tried meets it in {medium_name}")
              + f"; this part: {big['case_size_mm']:g} mm",
              SEVERITY_NOTE,
              "wrote   " + ", ".join(str(f) for f in files)]
