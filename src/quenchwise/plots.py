@@ -34,7 +34,11 @@ def _save(fig, out_dir: Path, stem: str) -> list[Path]:
 
 
 def _footer(fig, text: str) -> None:
-    fig.text(0.01, 0.01, text, fontsize=6.5, color="#555555", ha="left", va="bottom", wrap=True)
+    import textwrap
+
+    # Wrapped to the figure's width (about 17 characters per inch at 6.5 pt), so it never runs off.
+    fig.text(0.01, 0.01, textwrap.fill(text, int(fig.get_figwidth() * 17)), fontsize=6.5, color="#555555",
+             ha="left", va="bottom")
 
 
 def add_hrc_scale(ax, label: str = "HRC (ASTM E140)"):
@@ -399,7 +403,7 @@ def jominy_figure(result, out_dir: Path, band=None, stem: str = "jominy") -> lis
     d = result.distance_mm
     hrc = result.hrc
     fig, ax = plt.subplots(figsize=(7.2, 4.6))
-    fig.subplots_adjust(bottom=0.2, right=0.84, top=0.84)
+    fig.subplots_adjust(bottom=0.2, right=0.84, top=0.78)
     if band:
         bd = np.array([r.distance_mm for r in band])
         lo = np.array([np.nan if r.min_hrc is None else r.min_hrc for r in band])
@@ -424,16 +428,18 @@ def jominy_figure(result, out_dir: Path, band=None, stem: str = "jominy") -> lis
     top = ax.secondary_xaxis("top", functions=(lambda x: x / 1.5875, lambda s: s * 1.5875))
     top.set_xlabel("distance [1/16 in]", fontsize=8)
     rate_ax = ax.twinx()
-    rate_ax.plot(d, result.cooling_rate_700_c_s, color=POINT_COLOURS[2], lw=1.0, ls="-.")
+    rate_line, = rate_ax.plot(d, result.cooling_rate_700_c_s, color=POINT_COLOURS[2], lw=1.0, ls="-.",
+                              label="cooling rate at 700 °C (right)")
     rate_ax.set_yscale("log")
-    rate_ax.set_ylabel("cooling rate at 700 C [C/s]", color=POINT_COLOURS[2])
+    rate_ax.set_ylabel("cooling rate at 700 °C [°C/s]", color=POINT_COLOURS[2])
     di = f"DI: A255 {result.di_a255.inches:.2f} in"
     if result.di_physics is not None:
         di += f", simulated {result.di_physics.inches:.2f} in"
-    ax.legend(frameon=False, fontsize=7.5, loc="upper right")
+    handles, labels = ax.get_legend_handles_labels()
+    ax.legend(handles + [rate_line], labels + [rate_line.get_label()], frameon=False, fontsize=7.5, loc="upper right")
     steel = result.case.grade or "custom steel"
-    ax.set_title(f"{result.case.title or steel}: end-quench test ({steel}, {result.case.austenitize_c:g} C)\n{di}",
-                 fontsize=9.5, loc="left")
+    ax.set_title(f"{result.case.title or steel}: end-quench test ({steel}, {result.case.austenitize_c:g} °C)\n{di}",
+                 fontsize=9.5, loc="left", pad=22)
     _footer(fig, SHORT_CAUTION)
     return _save(fig, out_dir, stem)
 
@@ -460,22 +466,31 @@ def _steel_line(state, grain_size: float, model: str) -> str:
 
 def _levels(ax, levels: dict, x_right: float) -> None:
     lo, hi = ax.get_ylim()
-    for name, value in levels.items():
+    gap = 0.03 * (hi - lo)  # labels closer than this would overprint: the upper one moves up
+    placed = []
+    for name, value in sorted(levels.items(), key=lambda kv: kv[1] if np.isfinite(kv[1]) else -1e9):
         if not np.isfinite(value) or not lo < value < hi:
             continue
         colour, style = _LEVEL_STYLE.get(name, ("#8d8d8d", "-."))
         ax.axhline(value, color=colour, lw=0.8, ls=style, alpha=0.8)
-        ax.annotate(f"{name} {value:.0f}", (x_right, value), xytext=(3, 0), textcoords="offset points",
-                    fontsize=6.5, color=colour, va="center", annotation_clip=False)
+        y = max([value] + [p + gap for p in placed if p > value - gap])
+        placed.append(y)
+        height_pt = ax.get_position().height * ax.figure.get_figheight() * 72.0
+        ax.annotate(f"{name} {value:.0f}", (x_right, value), xytext=(3, (y - value) / (hi - lo) * height_pt),
+                    textcoords="offset points", fontsize=6.5, color=colour, va="center", annotation_clip=False)
 
 
-def _style_legend(ax, products, extra=()) -> None:
+def _style_legend(ax, products, extra=(), drawn=None) -> None:
+    """Legend of the product lines; drawn: {(product, "start"/"finish"): bool}, so that only curves
+    that appear in the figure are listed (None: all)."""
     from matplotlib.lines import Line2D
 
     handles = []
     for p in products:
-        handles.append(Line2D([], [], color=PRODUCT_COLOURS[p], lw=1.8, label=f"{p} start (1 %)"))
-        handles.append(Line2D([], [], color=PRODUCT_COLOURS[p], lw=1.3, ls="--", label=f"{p} finish (99 %)"))
+        if drawn is None or drawn.get((p, "start")):
+            handles.append(Line2D([], [], color=PRODUCT_COLOURS[p], lw=1.8, label=f"{p} start (1 %)"))
+        if drawn is None or drawn.get((p, "finish")):
+            handles.append(Line2D([], [], color=PRODUCT_COLOURS[p], lw=1.3, ls="--", label=f"{p} finish (99 %)"))
     handles.extend(extra)
     ax.legend(handles=handles, frameon=False, fontsize=6.5, loc="upper left", bbox_to_anchor=(1.08, 1.0))
 
@@ -498,30 +513,33 @@ def ttt_figure(diagram, out_dir: Path) -> list[Path]:
     ax.set_xlim(x_lo, x_hi)
     ax.set_xscale("log")
     temps = d.temperature_c
+    drawn = {}
     for p in d.products:
+        drawn[(p, "start")] = bool(np.isfinite(d.start_s[p]).any())
+        drawn[(p, "finish")] = bool(np.isfinite(d.finish_s[p]).any())
         c = PRODUCT_COLOURS[p]
         ax.plot(d.start_s[p], temps, color=c, lw=1.8)
         ax.plot(d.finish_s[p], temps, color=c, lw=1.3, ls="--")
         nose = d.nose(p)
         if nose is not None:
             ax.plot(*nose, marker="D", mfc="white", mec=c, ms=5, zorder=5)
-            ax.annotate(f"{nose[0]:.3g} s, {nose[1]:.0f} C", nose, xytext=(-6, -3), textcoords="offset points",
+            ax.annotate(f"{nose[0]:.3g} s, {nose[1]:.0f} °C", nose, xytext=(-6, -3), textcoords="offset points",
                         fontsize=6.5, color=c, ha="right", va="top")
     ax.plot(d.total_finish_s, temps, color=INK, lw=1.0, ls=":")
     bay = d.bay()
     if bay is not None:
-        ax.annotate(f"bay: {bay[0]:.3g} s at {bay[1]:.0f} C", bay, xytext=(8, 0), textcoords="offset points",
+        ax.annotate(f"bay: {bay[0]:.3g} s at {bay[1]:.0f} °C", bay, xytext=(8, 0), textcoords="offset points",
                     fontsize=6.5, color=INK, va="center")
     _levels(ax, d.levels_c, x_hi)
     ax.set_xlabel("holding time [s] (log)")
-    ax.set_ylabel("temperature [C]")
+    ax.set_ylabel("temperature [°C]")
     ax.grid(True, which="both", color="#eeeeee", lw=0.5)
-    _style_legend(ax, d.products, extra=[
+    _style_legend(ax, d.products, drawn=drawn, extra=[
         Line2D([], [], color=INK, lw=1.0, ls=":", label="99 % of the austenite transformed"),
         Line2D([], [], color="white", marker="D", mfc="white", mec=INK, ms=5, label="nose (shortest start)"),
         Line2D([], [], color="#8d8d8d", lw=0.8, ls="-.", label="Ae3 / Acm, Ae1"),
         Line2D([], [], color="#b23a48", lw=0.8, ls=(0, (6, 3)), label="Bs"),
-        Line2D([], [], color="#2f4858", lw=0.8, label="Ms; M50, M90 (Koistinen-Marburger)")])
+        Line2D([], [], color="#2f4858", lw=0.8, label="Ms; M50, M90 (the case's martensite law)")])
     fig.suptitle("Isothermal transformation (TTT)", fontsize=10, x=0.08, y=0.975, ha="left")
     fig.text(0.08, 0.905, _steel_line(d.state, d.grain_size, d.model), fontsize=6.5, color="#444444")
     _footer(fig, "Start: 1 % of the product's reach (proeutectoid: its lever-rule amount; pearlite, bainite: "
@@ -553,6 +571,10 @@ def _event_lines(ax, paths, products) -> None:
                 ys.append(ev[1])
             if xs:
                 ax.plot(xs, ys, color=PRODUCT_COLOURS[product], ls=style, lw=width)
+            if kind == "start" and xs and len(xs) > 1:
+                # The start line stops at the slowest path computed that forms this product: mark it so
+                # the end reads as an end of the data, not a line left hanging.
+                ax.plot(xs[-1], ys[-1], marker="o", ms=3.5, mfc="white", mec=PRODUCT_COLOURS[product], zorder=5)
 
 
 def cct_figure(diagram, out_dir: Path) -> list[Path]:
@@ -567,7 +589,7 @@ def cct_figure(diagram, out_dir: Path) -> list[Path]:
 
     d = diagram
     fig, axes = plt.subplots(1, 2, figsize=(12.5, 6.2), sharey=True)
-    fig.subplots_adjust(left=0.06, right=0.8, bottom=0.14, top=0.85, wspace=0.06)
+    fig.subplots_adjust(left=0.06, right=0.8, bottom=0.14, top=0.85, wspace=0.1)
     products = [p for p in ("ferrite", "cementite", "pearlite", "bainite")
                 if any((p, "start") in path.events for path in d.paths)]
     y_lo, y_hi = d.bath_c - 300.0, d.state.austenitize_c + 20.0
@@ -597,8 +619,15 @@ def cct_figure(diagram, out_dir: Path) -> list[Path]:
             ax.plot(*zip(*ms_pts), color=PRODUCT_COLOURS["martensite"], lw=1.2, marker=".", ms=3)
         ax.grid(True, which="both", color="#eeeeee", lw=0.5)
         ax.set_xlabel("time from the austenitizing temperature [s] (log)")
+        # The panels share the temperature axis: drop the left panel's last and the right panel's first
+        # time label, which would otherwise touch at the gap.
+        ticks = [t for t in ax.get_xticks() if x_lo <= t <= x_hi]
+        ax.set_xticks(ticks)
+        ax.set_xticklabels([("" if (family == "constant_rate" and t == ticks[-1])
+                             or (family == "newtonian" and t == ticks[0]) else f"$10^{{{int(round(np.log10(t)))}}}$")
+                            for t in ticks])
         ax.set_title(titles[family], fontsize=9, loc="left")
-    axes[0].set_ylabel("temperature [C]")
+    axes[0].set_ylabel("temperature [°C]")
     axes[0].set_yticks(np.arange(100.0 * np.ceil(max(d.bath_c, 0.0) / 100.0), y_hi, 100.0))
     _levels(axes[1], {k: v for k, v in d.levels_c.items() if k in ("Ae3", "Acm", "Ae1", "Bs", "Ms")},
             axes[1].get_xlim()[1])
@@ -611,6 +640,8 @@ def cct_figure(diagram, out_dir: Path) -> list[Path]:
     extra = [Line2D([], [], color=PRODUCT_COLOURS["martensite"], lw=1.2, marker=".", ms=3,
                     label="martensite start\n(Ms of the austenite left)"),
              Line2D([], [], color="#9aa5b1", lw=0.7, label="cooling path"),
+             Line2D([], [], color="#555555", lw=0, marker="o", ms=3.5, mfc="white",
+                    label="line ends: slowest path\nthat forms the product"),
              Line2D([], [], color="#8d8d8d", lw=0.8, ls="-.", label="Ae3 / Acm, Ae1"),
              Line2D([], [], color="#b23a48", lw=0.8, ls=(0, (6, 3)), label="Bs")]
     _style_legend(axes[1], products, extra=extra)
