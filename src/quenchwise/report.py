@@ -76,28 +76,31 @@ def key_numbers(result) -> dict:
     }
 
 
-def _sketch(ax, result) -> None:
+def _sketch(ax, result, units=None) -> None:
     s = result.history.section
     dims = result.case.dimensions_mm
     ax.set_aspect("equal")
     ax.axis("off")
     steel = "#b9c4d0"
+    if units is not None and units.us:
+        dims = {k: (round(units.length(v), 3) if k.endswith("_mm") else v) for k, v in dims.items()}
+    mm = units.length_unit if units is not None else "mm"
     if s.shape in ("bar", "sphere"):
         ax.add_patch(Circle((0, 0), 1.0, fc=steel, ec=INK, lw=1.5))
         if s.shape == "sphere":
             ax.add_patch(Wedge((0, 0), 1.0, 200, 340, width=0.0, ec=INK, lw=0.6, ls="--"))
-        label = f"\u2300 {dims['diameter_mm']:g} mm {s.shape}"
+        label = f"\u2300 {dims['diameter_mm']:g} {mm} {s.shape}"
         ax.annotate("", (-1, -1.25), (1, -1.25), arrowprops=dict(arrowstyle="<->", color=INK))
     elif s.shape == "tube":
         ro, ri = 1.0, s.inner_m / s.outer_m
         ax.add_patch(Circle((0, 0), ro, fc=steel, ec=INK, lw=1.5))
         ax.add_patch(Circle((0, 0), ri, fc="white", ec=INK, lw=1.2))
-        label = f"tube \u2300 {dims['outer_diameter_mm']:g} / {dims['inner_diameter_mm']:g} mm"
+        label = f"tube \u2300 {dims['outer_diameter_mm']:g} / {dims['inner_diameter_mm']:g} {mm}"
         ax.annotate("", (-1, -1.25), (1, -1.25), arrowprops=dict(arrowstyle="<->", color=INK))
     else:
         ax.add_patch(Rectangle((-1.2, -0.35), 2.4, 0.7, fc=steel, ec=INK, lw=1.5))
         faces = "both faces quenched" if dims.get("faces", "both") == "both" else "one face quenched"
-        label = f"plate {dims['thickness_mm']:g} mm thick, {faces}"
+        label = f"plate {dims['thickness_mm']:g} {mm} thick, {faces}"
         ax.annotate("", (1.35, -0.35), (1.35, 0.35), arrowprops=dict(arrowstyle="<->", color=INK))
     ax.set_xlim(-1.5, 1.5)
     ax.set_ylim(-1.6, 1.2)
@@ -219,7 +222,7 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
     for i, (key, label) in enumerate(RECORD_FIELDS):
         _field(rec, 0.005 + (i % 4) * 0.2475, 0.52 - (i // 4) * 0.5, label, record.get(key, ""), w=0.24, h=0.45)
 
-    _sketch(fig.add_axes([0.04, 0.70, 0.30, 0.15]), result)
+    _sketch(fig.add_axes([0.04, 0.70, 0.30, 0.15]), result, u)
 
     c = case.composition.as_dict()
     chem = "  ".join(f"{k.capitalize()} {v:.2f}" for k, v in c.items() if v > 0)
@@ -231,17 +234,20 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
         ("Austenitize", f"{T(case.austenitize_c)}   (Ae1 {T(st.ae1)}, {'Acm' if st.hypereutectoid else 'Ae3'} "
                         f"{T(st.upper_critical)}; austenite {st.carbon:.2f} %C)"),
         ("Quench", f"{case.outer.name} at {T(case.outer.bath_c)}" + _severity_text(result)
-                   + (f"; bore {case.inner.name}" if case.inner else "")),
+                   + ((f"; bore the same" if case.inner.name == case.outer.name else f"; bore {case.inner.name}")
+                      if case.inner else "")),
         ("Quench ends", f"hottest point below {T(case.end_c)} after {result.history.time_s[-1]:.0f} s"),
         ("Temper", "none (as quenched)" if case.temper is None
                    else f"{T(case.temper.temperature_c)} for {case.temper.hours:g} h"),
     ]
     info = fig.add_axes([0.38, 0.70, 0.59, 0.15])
     info.axis("off")
-    for i, (k, v) in enumerate(lines):
-        y = 0.97 - i * 0.165
+    y = 0.97
+    for k, v in lines:
+        v = textwrap.fill(v, 66)
         info.text(0.0, y, k, fontsize=7.5, color="#666666", va="top")
-        info.text(0.24, y, v, fontsize=8, color="black", va="top", wrap=True)
+        info.text(0.24, y, v, fontsize=8, color="black", va="top")
+        y -= 0.165 + 0.1 * v.count("\n")  # a wrapped value pushes the next line down
 
     ax = fig.add_axes([0.10, 0.475, 0.78, 0.19])
     hv = final_hv(result)
@@ -292,8 +298,8 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
     table = table_ax.table(cellText=cells, colLabels=labels, loc="upper left", cellLoc="center")
     table.auto_set_font_size(False)
     table.set_fontsize(7)
-    table.scale(1.0, 0.95 if len(rows) > 12 else 1.05)
     for (r, _), cell in table.get_celld().items():
+        cell.set_height(min(0.085, 1.0 / (len(rows) + 1)))  # every row fits above the sign-off boxes
         cell.set_edgecolor("#c9d2dc")
         if r == 0:
             cell.set_facecolor("#e8eef4")
