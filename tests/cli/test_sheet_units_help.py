@@ -218,3 +218,19 @@ def test_sheet_lists_every_warning_of_the_run(cli, cases_dir, tmp_path):
                                    check=True).stdout.split())
     for w in warnings:
         assert " ".join(w.split()[:6]) in text, w
+
+
+@needs_pdftotext
+def test_sheet_shows_the_equivalent_jominy_distance_when_the_result_has_it(tmp_path):
+    """Contract (TEAM.md): Result.jominy_distance_mm per node; the sheet's depth table gains a J column."""
+    from quenchwise.report import write_sheet
+    from quenchwise.workflows import simulate_case
+
+    case = parse_case(tomllib.loads('[steel]\ngrade = "4140"\n[part]\nshape = "bar"\ndiameter_mm = 12\n'
+                                    '[quench]\nmedium = "water_20c_still"\n'), "x", "inline")
+    r = simulate_case(case)
+    r.jominy_distance_mm = np.full(r.hv.shape, 7.25)
+    write_sheet(r, tmp_path)
+    text = " ".join(subprocess.run(["pdftotext", "-layout", str(tmp_path / "sheet.pdf"), "-"], capture_output=True,
+                                   text=True, check=True).stdout.split())
+    assert "J mm" in text and "7.25" in text
