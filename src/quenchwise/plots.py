@@ -241,7 +241,7 @@ def hardness_figure(result, out_dir: Path, units=None) -> list[Path]:
                     fontsize=7, color=colour, ha="left" if d < 0.9 * u.length(total) else "right")
     fig.text(0.125, 0.945, f"{result.case.title or 'case'}: hardness profile", fontsize=10, ha="left")
     ax.legend(frameon=False, fontsize=7.5, loc="lower left", bbox_to_anchor=(0.0, 1.0), ncol=3,
-              title="line: PCHIP through the cell values (dots)", title_fontsize=6.5, alignment="left")
+              title="line: PCHIP through the cell values (dots); small steps come from the kinetics time step (run --fine refines it)", title_fontsize=6.5, alignment="left")
     _footer(fig, SHORT_CAUTION)
     return _save(fig, out_dir, "hardness")
 

@@ -160,12 +160,14 @@ def test_units_us_output_columns_and_values(cli, cases_dir, tmp_path):
     """--units us: profile.csv in inches (depth_in = depth_mm / 25.4), the text in in and F."""
     import csv
 
+    from quenchwise.case import load_case
+    from quenchwise.results import profile_csv_text
+    from quenchwise.workflows import simulate_case
+
     code, out, err = cli("run", cases_dir / "shaft_water.toml", "--units", "us", "--out", tmp_path / "us")
     assert code == 0, err
-    code, _, err = cli("run", cases_dir / "shaft_water.toml", "--out", tmp_path / "si")
-    assert code == 0, err
     us = list(csv.DictReader((tmp_path / "us" / "profile.csv").open()))
-    si = list(csv.DictReader((tmp_path / "si" / "profile.csv").open()))
+    si = list(csv.DictReader(profile_csv_text(simulate_case(load_case(cases_dir / "shaft_water.toml"))).splitlines()))
     assert "depth_in" in us[0] and "depth_mm" not in us[0]
     for a, b in zip(us, si):
         assert float(a["depth_in"]) == pytest.approx(float(b["depth_mm"]) / 25.4, abs=1e-4)
@@ -178,7 +180,7 @@ needs_pdftotext = pytest.mark.skipif(shutil.which("pdftotext") is None, reason="
 
 
 @needs_pdftotext
-@pytest.mark.parametrize("page, size_pt, steps", [("letter", (612, 792), "--fine"), ("a4", (595, 842), "--default-steps")])
+@pytest.mark.parametrize("page, size_pt, steps", [("letter", (612, 792), "--default-steps"), ("a4", (595, 842), "--default-steps")])
 def test_sheet_record_fields_read_back_from_the_pdf(cli, tmp_path, page, size_pt, steps):
     """Letter is 8.5 x 11 in = 612 x 792 pt; A4 210 x 297 mm = 595 x 842 pt (ISO 216)."""
     case = tmp_path / "pin.toml"
@@ -234,3 +236,18 @@ def test_sheet_shows_the_equivalent_jominy_distance_when_the_result_has_it(tmp_p
     text = " ".join(subprocess.run(["pdftotext", "-layout", str(tmp_path / "sheet.pdf"), "-"], capture_output=True,
                                    text=True, check=True).stdout.split())
     assert "J mm" in text and "7.25" in text
+
+
+def test_sheet_refines_the_kinetics_step_only_when_coarser():
+    """The sheet's record solves with at most 1 % of a phase per step; a finer [mesh] setting stays."""
+    from dataclasses import replace
+
+    from quenchwise.cli import _refined
+
+    case = parse_case({"steel": {"grade": "4140"}, "part": {"shape": "bar", "diameter_mm": 20.0},
+                       "quench": {"medium": "water_20c_still"}})
+    fine, note = _refined(case, True)
+    assert fine.settings.max_fraction_step == 0.01 and "1 %" in note
+    finer = replace(case, settings=replace(case.settings, max_fraction_step=0.005))
+    assert _refined(finer, True)[0].settings.max_fraction_step == 0.005
+    assert _refined(case, False) == (case, "")
