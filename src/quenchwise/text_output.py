@@ -40,14 +40,16 @@ def yes_no_na(meets, has_requirement: bool) -> str:
     return "yes" if meets else "no"
 
 
-def point_scales(p: dict, suffix: str = "") -> tuple[str, str, str]:
-    """HRC, HV and HRB of a reading (HRB only where HRC does not apply; '-' where none applies).
+def point_scales(p: dict, suffix: str = "") -> tuple[str, str, str, str]:
+    """HRC, HV, HRB and HB of a reading (HRB and HB only where HRC does not apply; '-' where a scale
+    does not apply).
 
-    >>> point_scales({"hrc": None, "hv": 200.0, "hrb": 91.5})
-    ('-', '200', '91.5')
+    >>> point_scales({"hrc": None, "hv": 200.0, "hrb": 91.5, "hb": 190.0})
+    ('-', '200', '91.5', '190')
     """
+    soft = p.get(f"hrc{suffix}") is None
     return (fmt(p.get(f"hrc{suffix}")), fmt(p.get(f"hv{suffix}"), "{:.0f}"),
-            fmt(p.get(f"hrb{suffix}")) if p.get(f"hrc{suffix}") is None else "-")
+            fmt(p.get(f"hrb{suffix}")) if soft else "-", fmt(p.get(f"hb{suffix}"), "{:.0f}") if soft else "-")
 
 
 def run_summary_text(summary: dict, files: list, units: Units | None = None) -> str:
@@ -75,17 +77,17 @@ def run_summary_text(summary: dict, files: list, units: Units | None = None) -> 
         + (f"; bore: {s['quench']['inner']}" if s["quench"]["inner"] else "")
         + f"; until the hottest point is below {T(s['quench']['end_c'])} ({s['time_to_end_s']:.1f} s, {s['steps']} steps)",
         "",
-        f"{'location':<20}{'depth ' + u.length_unit:>9}{'HRC':>7}{'HV':>7}{'HRB':>7}{'martensite %':>14}{'bainite %':>11}"
+        f"{'location':<20}{'depth ' + u.length_unit:>9}{'HRC':>7}{'HV':>7}{'HRB':>7}{'HB':>6}{'martensite %':>14}{'bainite %':>11}"
         f"{'ferr+pearl %':>14}{'ret. aust %':>13}",
     ]
     for p in s["points"]:
-        hrc, hv, hrb = point_scales(p)
+        hrc, hv, hrb, hb = point_scales(p)
         depth = u.length(p["depth_mm"])
-        lines.append(f"{p['location']:<20}{depth:>9.{3 if u.us else 2}f}{hrc:>7}{hv:>7}{hrb:>7}"
+        lines.append(f"{p['location']:<20}{depth:>9.{3 if u.us else 2}f}{hrc:>7}{hv:>7}{hrb:>7}{hb:>6}"
                      f"{p['martensite_pct']:>14.1f}{p['bainite_pct']:>11.1f}{p['ferrite_pearlite_pct']:>14.1f}"
                      f"{p['retained_austenite_pct']:>13.1f}")
     if any(p.get("hrc") is None for p in s["points"]):
-        lines.append("        HRC does not apply below HRC 20 (ASTM E140): HRB given there, HV everywhere")
+        lines.append("        HRC does not apply below HRC 20 (ASTM E140): HRB and HB given there, HV everywhere")
     if "temper" in s:
         t = s["temper"]
         lines.append(f"temper  {t['hours']:g} h at {T(t['temperature_c'])}: " + ", ".join(

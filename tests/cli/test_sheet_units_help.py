@@ -105,6 +105,7 @@ def test_soft_part_reads_in_hrb(cli):
     assert "HRB" in header.split()
     centre = next(ln for ln in out.splitlines() if ln.startswith("centre")).split()
     hrc, hv, hrb = centre[2], float(centre[3]), float(centre[4])
+    assert "HB" in header.split() and float(centre[5]) > 0
     assert hrc == "-" and 120.0 <= hv <= 160.0
     assert 73.0 - (150.0 - hv) * 0.6 <= hrb <= 81.0
 
