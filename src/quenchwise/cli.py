@@ -290,6 +290,8 @@ def compare(
     out: Path = typer.Option(..., "--out", "-o", help="Folder for compare.csv and figures."),
     json_out: bool = typer.Option(False, "--json", help="Print the table as one JSON object, nothing else."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+    units: str = typer.Option("si", "--units", help="Output units: si (mm, C) or us (in, F) for the text, "
+                                                    "compare.csv and the figures; --json stays SI."),
 ) -> None:
     """The same part in several quenchants, solved as one batch."""
     with _guard():
@@ -299,6 +301,7 @@ def compare(
         from .thermal.quenchants import load_quenchant
         from .workflows.compare import compare as compare_media
 
+        u = _units_option(units)
         _check_out_dir(out, overwrite, markers=("compare.csv",))
         case = load_case(case_file)
         media = [load_quenchant(m, key="--medium") for m in medium] or list(case.compare_media)
@@ -312,13 +315,17 @@ def compare(
                 r["meets_requirement"] = None
         with _staged(out) as (staging, files):
             write_table_csv(staging / "compare.csv", result.rows)
-            compare_figures(result, staging)
+            if u.us:
+                from .units import us_csv_text
+
+                (staging / "compare.csv").write_text(us_csv_text((staging / "compare.csv").read_text("utf-8")), "utf-8")
+            compare_figures(result, staging, u)
         from .text_output import compare_text
 
         best = result.best()
         text = compare_text(case.title, result.rows, case.requirement.describe() if case.requirement else None, files,
                             best["medium"] if best else None,
-                            bool(case.requirement and case.requirement.min_hrc))
+                            bool(case.requirement and case.requirement.min_hrc), u)
         _emit(json_out, {"title": case.title, "rows": result.rows, "mildest_meeting": best["medium"] if best else None,
                          "files": [str(f) for f in files]}, text)
 

@@ -178,7 +178,7 @@ def finish_hardness_axis(ax, scale: str, values, label: str | None = None):
 
 
 def requirement_line(ax, req, scale: str, total_mm: float, colour: str = "#c77d1a", length=None,
-                     wrap: int | None = None) -> None:
+                     wrap: int | None = None, units=None) -> None:
     """The drawing's requirement, drawn only down to its depth (through the section when it asks
     for the centre) and ended by a short vertical tick at that depth."""
     if req is None or req.min_hrc is None:
@@ -187,6 +187,8 @@ def requirement_line(ax, req, scale: str, total_mm: float, colour: str = "#c77d1
     depth = total_mm if req.depth_mm is None else req.depth_mm
     x = depth if length is None else length(depth)
     label = f"required: {req.describe()}"
+    if units is not None and units.us and req.depth_mm is not None:
+        label = label.replace(f"{req.depth_mm:g} mm", f"{units.length(req.depth_mm):.3g} in")
     if wrap:
         import textwrap
 
@@ -232,7 +234,7 @@ def hardness_figure(result, out_dir: Path, units=None) -> list[Path]:
     finish_hardness_axis(ax, scale, np.concatenate(drawn + ([np.array([req.min_hrc if scale == "HRC" else
                                                                        float(hv_from_hrc(req.min_hrc))])]
                                                              if req is not None and req.min_hrc is not None else [])))
-    requirement_line(ax, req, scale, total, length=u.length)
+    requirement_line(ax, req, scale, total, length=u.length, units=u)
     lo, hi = ax.get_ylim()
     for (label, r), colour in zip(result.points(), POINT_COLOURS):
         d = u.length((result.history.section.outer_m - r) * 1000.0)
@@ -279,11 +281,12 @@ def cooling_figure(result, out_dir: Path, units=None) -> list[Path]:
     return _save(fig, out_dir, "cooling")
 
 
-def compare_figures(comparison, out_dir: Path) -> list[Path]:
+def compare_figures(comparison, out_dir: Path, units=None) -> list[Path]:
     """Overlay of hardness profiles and of centre cooling curves, one line per quenchant; the
     legends sit outside the plotting area, the requirement stops at its depth."""
     from .workflows.requirement import final_hv
 
+    u = _units(units)
     palette = ("#1d3557", "#c77d1a", "#a4343a", "#2a9d8f", "#6d597a", "#8a817c", "#e9c46a", "#264653")
     paths = []
     hvs = [final_hv(r) for r in comparison.results]
@@ -295,16 +298,16 @@ def compare_figures(comparison, out_dir: Path) -> list[Path]:
     for i, (m, r, hv) in enumerate(zip(comparison.media, comparison.results, hvs)):
         y = in_scale(hv, scale)
         x, ys = smooth_profile(r.depth_mm, y)
-        ax.plot(x, ys, color=palette[i % len(palette)], lw=1.8, label=m.name)
+        ax.plot(u.length(1.0) * x, ys, color=palette[i % len(palette)], lw=1.8, label=m.name)
         drawn.append(y)
     req = comparison.case.requirement
     if req is not None and req.min_hrc is not None:
         drawn.append(np.array([req.min_hrc if scale == "HRC" else float(hv_from_hrc(req.min_hrc))]))
-    ax.set_xlim(0, total)
-    ax.set_xlabel("depth below the quenched surface [mm]")
+    ax.set_xlim(0, u.length(total))
+    ax.set_xlabel(f"depth below the quenched surface [{u.length_unit}]")
     ax.grid(True, color="#e5e5e5", lw=0.6)
     finish_hardness_axis(ax, scale, np.concatenate(drawn))
-    requirement_line(ax, req, scale, total, colour="#555555", wrap=32)
+    requirement_line(ax, req, scale, total, colour="#555555", length=u.length, wrap=32, units=u)
     ax.legend(frameon=False, fontsize=7.5, loc="upper left", bbox_to_anchor=(1.13, 1.0))
     ax.set_title(f"{comparison.case.title or 'case'}: hardness by quenchant", fontsize=10, loc="left")
     _footer(fig, SHORT_CAUTION)
@@ -313,10 +316,11 @@ def compare_figures(comparison, out_dir: Path) -> list[Path]:
     fig.subplots_adjust(bottom=0.2, right=0.66, left=0.09)
     for i, (m, r) in enumerate(zip(comparison.media, comparison.results)):
         h = r.history
-        ax.plot(np.maximum(h.time_s[1:], 1e-3), h.temperature_c[1:, 0], color=palette[i % len(palette)], lw=1.6, label=m.name)
+        ax.plot(np.maximum(h.time_s[1:], 1e-3), [u.temperature(v) for v in h.temperature_c[1:, 0]],
+                color=palette[i % len(palette)], lw=1.6, label=m.name)
     ax.set_xscale("log")
     ax.set_xlabel("time since immersion [s]")
-    ax.set_ylabel("centre temperature [°C]")
+    ax.set_ylabel(f"centre temperature [{u.temp_unit}]")
     ax.grid(True, which="both", color="#eeeeee", lw=0.5)
     ax.legend(frameon=False, fontsize=7.5, loc="upper left", bbox_to_anchor=(1.02, 1.0))
     ax.set_title(f"{comparison.case.title or 'case'}: centre cooling by quenchant", fontsize=10, loc="left")

@@ -267,7 +267,7 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
     ax.set_xlabel(f"depth below the quenched surface [{u.length_unit}]", fontsize=8)
     ax.grid(True, color="#e6e6e6", lw=0.6)
     right = finish_hardness_axis(ax, scale, np.concatenate(drawn))
-    requirement_line(ax, req, scale, total, colour=ACCENT, length=u.length)
+    requirement_line(ax, req, scale, total, colour=ACCENT, length=u.length, units=u)
     for a in (ax, right):
         a.tick_params(labelsize=7.5)
         a.yaxis.label.set_size(8)

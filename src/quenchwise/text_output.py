@@ -108,16 +108,17 @@ def run_summary_text(summary: dict, files: list, units: Units | None = None) -> 
 
 
 def compare_text(title: str, rows: list[dict], requirement: str | None, files: list, best: str | None,
-                 limit_from_requirement: bool) -> str:
+                 limit_from_requirement: bool, units: Units | None = None) -> str:
     """The `compare` table; the 'meets' column reads n/a when the case has no requirement."""
+    u = units or Units("si")
     has_req = requirement is not None
     lines = [f"{title or 'case'}: {len(rows)} quenchants, one batch",
              f"{'medium':<30}{'H 1/in':>8}{'surf HRC':>10}{'half HRC':>10}{'ctr HRC':>9}{'ctr M %':>9}"
-             f"{'eff. depth mm':>15}{'meets':>7}  crack risk"]
+             f"{'eff. depth ' + u.length_unit:>15}{'meets':>7}  crack risk"]
     for r in rows:
         lines.append(f"{r['medium']:<30}{fmt(r['equivalent_h'], '{:.2f}'):>8}{fmt(r['surface_hrc']):>10}"
                      f"{fmt(r['half_hrc']):>10}{fmt(r['centre_hrc']):>9}{r['centre_martensite_pct']:>9.1f}"
-                     f"{r['effective_depth_mm']:>15.2f}{yes_no_na(r['meets_requirement'], has_req):>7}  {r['crack_risk']}")
+                     f"{u.length(r['effective_depth_mm']):>15.{3 if u.us else 2}f}{yes_no_na(r['meets_requirement'], has_req):>7}  {r['crack_risk']}")
     lines.append(f"effective depth: to {rows[0]['limit_hrc']:g} HRC "
                  + ("(the requirement)" if limit_from_requirement else "(50 % martensite, Hodge & Orehoski)"))
     if has_req:
