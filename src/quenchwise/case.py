@@ -343,4 +343,6 @@ def load_case(path: str | Path, defaults: dict | None = None) -> Case:
     try:
         return parse_case(data, text, name, p.parent)
     except InputError as exc:
-        raise exc.with_source(name) from None
+        from .units import renamed_error, us_origins
+
+        raise renamed_error(exc, us_origins(data)).with_source(name) from None

@@ -72,6 +72,32 @@ def si_keys(data: dict) -> dict:
     return out
 
 
+def us_origins(data: dict) -> dict:
+    """{"part.diameter_mm": ("part.diameter_in", 1.0), ...} for every US key present, so an error
+    found on the converted SI key can name the key and value the user wrote."""
+    out = {}
+    for table, aliases in US_KEYS.items():
+        t = data.get(table)
+        if isinstance(t, dict):
+            for us, (si, _, _) in aliases.items():
+                if us in t:
+                    out[f"{table}.{si}"] = (f"{table}.{us}", t[us])
+    return out
+
+
+def renamed_error(exc: InputError, origins: dict) -> InputError:
+    """The same error on the US key the user gave, with the SI value it was converted to.
+
+    >>> str(renamed_error(InputError("part.diameter_mm", -25.4, "a number from 0.5 to 2000"),
+    ...                   {"part.diameter_mm": ("part.diameter_in", -1.0)}))
+    'part.diameter_in = -1.0: allowed is a number from 0.5 to 2000 (after conversion: part.diameter_mm = -25.4)'
+    """
+    if exc.key not in origins:
+        return exc
+    key, value = origins[exc.key]
+    return InputError(key, value, f"{exc.allowed} (after conversion: {exc.key} = {exc.value!r})", source=exc.source)
+
+
 class Units:
     """How lengths and temperatures are shown: "si" (mm, C) or "us" (in, F).
 

@@ -252,3 +252,11 @@ def test_sheet_refines_the_kinetics_step_only_when_coarser():
     finer = replace(case, settings=replace(case.settings, max_fraction_step=0.005))
     assert _refined(finer, True)[0].settings.max_fraction_step == 0.005
     assert _refined(case, False) == (case, "")
+
+
+def test_a_bad_inch_value_is_reported_on_the_key_the_user_wrote(cli, tmp_path):
+    bad = tmp_path / "inch.toml"
+    bad.write_text('[steel]\ngrade = "4140"\n[part]\nshape = "bar"\ndiameter_in = -1\n[quench]\nmedium = "water_20c_still"\n')
+    code, _, err = cli("run", bad)
+    assert code == 2 and "part.diameter_in = -1" in err and "part.diameter_mm = -25.4" in err
+    assert len(err.strip().splitlines()) == 1
