@@ -261,7 +261,8 @@ def steels(json_out: bool = typer.Option(False, "--json", help="Print the list a
         typer.echo(f"{g.name:<8}{g.en or '-':<10}{g.family:<30}" + "".join(f"{n.get(e, 0):>6.2f}" for e in ("c", "mn", "si", "ni", "cr", "mo", "v"))
                    + f"{g.austenitize_c:>8.0f}")
     typer.echo("Nominal chemistry in wt% (midpoints of the specification ranges, recalled from SAE/EN standards: check "
-               "against the current standard and the mill certificate).")
+               "against the current standard and the mill certificate). A grade may be given by the EN name listed "
+               "here (e.g. grade = \"42CrMo4\").")
 
 
 @app.callback(invoke_without_command=True)
