@@ -356,6 +356,8 @@ def size(
     depth_mm: Optional[float] = typer.Option(None, "--depth-mm", help="Down to this depth (default: centre)."),
     json_out: bool = typer.Option(False, "--json", help="Print the answers as one JSON object, nothing else."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+    units: str = typer.Option("si", "--units", help="Output units: si (mm, C) or us (in, F) for the text, "
+                                                    "the CSV and the figures; --json stays SI."),
 ) -> None:
     """Mildest severity, the quenchants that do it, and the largest section that meets a requirement."""
     with _guard():
@@ -363,6 +365,7 @@ def size(
         from .plots import sizing_figure
         from .workflows.size import size as size_answer
 
+        u = _units_option(units)
         _check_out_dir(out, overwrite, markers=("sizing.json",))
         case = load_case(case_file)
         req = _requirement_from_options(case, min_hrc, min_martensite, depth_mm)
@@ -374,11 +377,11 @@ def size(
         payload = {"title": case.title, **answer.as_dict()}
         with _staged(out) as (staging, files):
             (staging / "sizing.json").write_text(json.dumps(payload, indent=2), "utf-8")
-            sizing_figure(answer, staging)
+            sizing_figure(answer, staging, u)
         from .text_output import SEVERITY_NOTE, size_text
 
         payload["severity_note"] = SEVERITY_NOTE
-        text = size_text(case.title, payload, case.outer.name, files)
+        text = size_text(case.title, payload, case.outer.name, files, u)
         _emit(json_out, {**payload, "files": [str(f) for f in files]}, text)
 
 
@@ -390,6 +393,8 @@ def band(
     seed: int = typer.Option(1, "--seed", help="Random seed (same seed, same answer)."),
     json_out: bool = typer.Option(False, "--json", help="Print the band summary as one JSON object, nothing else."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+    units: str = typer.Option("si", "--units", help="Output units: si (mm, C) or us (in, F) for the text, "
+                                                    "the CSV and the figures; --json stays SI."),
 ) -> None:
     """Hardness band over the grade's chemistry range (seeded Monte Carlo, one batch)."""
     with _guard():
@@ -400,6 +405,7 @@ def band(
         from .results import write_table_csv
         from .workflows.band import band as band_run
 
+        u = _units_option(units)
         _check_out_dir(out, overwrite, markers=("band.csv",))
         case = load_case(case_file)
         _activity(f"solving {samples} sampled heats of {case_file}")
@@ -412,7 +418,11 @@ def band(
                 for i, d in enumerate(b.depth_mm)]
         with _staged(out) as (staging, files):
             write_table_csv(staging / "band.csv", rows)
-            band_figure(b, staging)
+            if u.us:
+                from .units import us_csv_text
+
+                (staging / "band.csv").write_text(us_csv_text((staging / "band.csv").read_text("utf-8")), "utf-8")
+            band_figure(b, staging, u)
         share = b.share_meeting()
         surface, centre = rows[0], rows[-1]
         lines = [f"{case.title or 'case'}: {case.grade} chemistry range, {samples} heats (seed {seed}), one batch",

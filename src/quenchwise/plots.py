@@ -329,28 +329,30 @@ def compare_figures(comparison, out_dir: Path, units=None) -> list[Path]:
     return paths
 
 
-def band_figure(band, out_dir: Path) -> list[Path]:
+def band_figure(band, out_dir: Path, units=None) -> list[Path]:
     """Min-median-max hardness over the sampled chemistry range (HRC where it applies)."""
     from matplotlib.patches import Patch
 
+    u = _units(units)
+    x = u.length(1.0) * np.asarray(band.depth_mm, dtype=float)
     q = band.quantiles(band.hv)
     scale = hardness_scale(q["min"], q["max"])
     lo, med, hi = (in_scale(q[k], scale) for k in ("min", "median", "max"))
     total = band.case.section.thickness_m * 1000.0
     fig, ax = plt.subplots(figsize=(7.4, 4.8))
     fig.subplots_adjust(bottom=0.2, right=0.86, top=0.78)
-    ax.fill_between(band.depth_mm, lo, hi, color="#c9d6e3", lw=0)
-    ax.plot(band.depth_mm, lo, color="#7d93ab", lw=0.8)
-    ax.plot(band.depth_mm, hi, color="#7d93ab", lw=0.8)
-    ax.plot(band.depth_mm, med, color=INK, lw=2.0, label="median")
+    ax.fill_between(x, lo, hi, color="#c9d6e3", lw=0)
+    ax.plot(x, lo, color="#7d93ab", lw=0.8)
+    ax.plot(x, hi, color="#7d93ab", lw=0.8)
+    ax.plot(x, med, color=INK, lw=2.0, label="median")
     req = band.case.requirement
     drawn = [lo, hi] + ([np.array([req.min_hrc if scale == "HRC" else float(hv_from_hrc(req.min_hrc))])]
                         if req is not None and req.min_hrc is not None else [])
-    ax.set_xlim(0, total)
-    ax.set_xlabel("depth below the quenched surface [mm]")
+    ax.set_xlim(0, u.length(total))
+    ax.set_xlabel(f"depth below the quenched surface [{u.length_unit}]")
     ax.grid(True, color="#e5e5e5", lw=0.6)
     finish_hardness_axis(ax, scale, np.concatenate(drawn))
-    requirement_line(ax, req, scale, total)
+    requirement_line(ax, req, scale, total, length=u.length, units=u)
     handles, labels = ax.get_legend_handles_labels()
     handles.insert(0, Patch(fc="#c9d6e3", ec="#7d93ab", lw=0.8))
     labels.insert(0, f"min-max of {len(band.results)} heats")
@@ -362,23 +364,24 @@ def band_figure(band, out_dir: Path) -> list[Path]:
     return _save(fig, out_dir, "band")
 
 
-def sizing_figure(answer, out_dir: Path) -> list[Path]:
+def sizing_figure(answer, out_dir: Path, units=None) -> list[Path]:
     """Requirement margin against severity and against size, from every solved case."""
     from matplotlib.lines import Line2D
 
+    u = _units(units)
     fig, (a, b) = plt.subplots(1, 2, figsize=(9.0, 4.3))
     fig.subplots_adjust(bottom=0.27, wspace=0.3, top=0.88)
     unit = "HV" if answer.requirement.min_hrc is not None else "% martensite"
     dimension = answer.size_label.replace("_mm", "").replace("_", " ")
-    for ax, bracket, xlabel in ((a, answer.severity, "constant severity, Grossmann H [1/in]"),
-                                (b, answer.size, f"{dimension} [mm]")):
+    for ax, bracket, xlabel, k in ((a, answer.severity, "constant severity, Grossmann H [1/in]", 1.0),
+                                   (b, answer.size, f"{dimension} [{u.length_unit}]", u.length(1.0))):
         pts = sorted(bracket.evaluated)
         if pts:
             x, y = zip(*pts)
-            ax.plot(x, y, "o-", color=INK, ms=3, lw=1.2)
+            ax.plot(k * np.asarray(x), y, "o-", color=INK, ms=3, lw=1.2)
         ax.axhline(0.0, color="#a4343a", lw=1.0)
         if bracket.passing is not None:
-            ax.axvline(bracket.passing, color="#c77d1a", lw=1.0, ls="--")
+            ax.axvline(k * bracket.passing, color="#c77d1a", lw=1.0, ls="--")
         ax.set_xscale("log")
         ax.set_xlabel(xlabel)
         ax.set_ylabel(f"margin to the requirement [{unit}]")

@@ -130,8 +130,10 @@ def compare_text(title: str, rows: list[dict], requirement: str | None, files: l
     return "\n".join(lines)
 
 
-def size_text(title: str, d: dict, medium_name: str, files: list) -> str:
+def size_text(title: str, d: dict, medium_name: str, files: list, units: Units | None = None) -> str:
     """The `size` answers, each real quenchant with its equivalent H, and what a constant severity means."""
+    u = units or Units("si")
+    L = lambda mm: f"{u.length(mm):.3g} in" if u.us else f"{mm:g} mm"  # noqa: E731
     sev, big = d["mildest_severity"], d["largest_size"]
     by_name = {q["medium"]: q for q in d.get("quenchants", [])}
 
@@ -149,10 +151,10 @@ def size_text(title: str, d: dict, medium_name: str, files: list) -> str:
              "real quenchant curves that meet it, mildest first: "
              + (", ".join(with_h(n) for n in d["quenchants_meeting"]) or "none"),
              "real curves that do not: " + (", ".join(with_h(q["medium"]) for q in failing) or "none"),
-             (f"largest {big['dimension'].replace('_mm', '')} in {medium_name}: {big['largest_passing_mm']:g} mm "
-              + (f"({big['next_larger_failing_mm']:g} mm does not meet it)" if big["next_larger_failing_mm"] else "(largest tried)")
+             (f"largest {big['dimension'].replace('_mm', '')} in {medium_name}: {L(big['largest_passing_mm'])} "
+              + (f"({L(big['next_larger_failing_mm'])} does not meet it)" if big["next_larger_failing_mm"] else "(largest tried)")
               if big["largest_passing_mm"] is not None else f"no {big['dimension'].replace('_mm', '')} tried meets it in {medium_name}")
-             + f"; this part: {big['case_size_mm']:g} mm",
+             + f"; this part: {L(big['case_size_mm'])}",
              SEVERITY_NOTE,
              "wrote   " + ", ".join(str(f) for f in files)]
     return "\n".join(lines)
