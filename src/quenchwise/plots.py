@@ -115,12 +115,11 @@ def _nice_step(span: float, target: int = 6) -> float:
     return float(min((m * mag for m in (1, 2, 2.5, 5, 10) if m * mag >= raw), default=10 * mag))
 
 
-def finish_hardness_axis(ax, scale: str, values, label: str | None = None):
+def finish_hardness_axis(ax, scale: str, values, label: str | None = None, outer_hrb: bool = True):
     """Limits with the minimum span (centred on the data), the main label, and a right-hand axis
     ticked in the other scale (HV when HRC is the main scale; HRC where it applies, else HRB, when
-    HV is). values: the drawn values in the main scale. Returns the right-hand axis."""
-    from .hardness import hrb_from_hv
-
+    HV is; both when the data span the two). values: the drawn values in the main scale. Returns the
+    right-hand axis."""
     v = np.asarray(values, dtype=float)
     v = v[np.isfinite(v)]
     lo, hi = (float(v.min()), float(v.max())) if v.size else (40.0, 60.0)
@@ -154,27 +153,49 @@ def finish_hardness_axis(ax, scale: str, values, label: str | None = None):
     hrc = np.arange(20.0, 69.0, 1.0)
     pos = hv_from_hrc(hrc)
     inside = (pos >= lo) & (pos <= hi)
-    if inside.sum() >= 2:
-        step = int(max(1, _nice_step(float(np.ptp(hrc[inside])) or 1.0, 5)))
+    has_hrc = inside.sum() >= 2
+    if has_hrc:
+        # As many HRC ticks as the share of the axis they cover allows (about 6 over the full height).
+        room = max(1, int(6 * float(np.ptp(pos[inside])) / (hi - lo)))
+        step = int(max(1, _nice_step(float(np.ptp(hrc[inside])) or 1.0, room)))
         sel = inside & (hrc % step == 0)
         right.set_yticks(pos[sel])
         right.set_yticklabels([f"{t:.0f}" for t in hrc[sel]])
         right.set_ylabel("Rockwell C HRC (ASTM E140)", color="#666666")
-        return right
+    if v.size and float(v.min()) < HV_AT_HRC20:
+        # Part of the data lies below HRC 20: Rockwell B there (on its own outer axis if HRC has one).
+        target = right
+        if has_hrc and outer_hrb:
+            target = ax.twinx()
+            target.spines["right"].set_position(("outward", 34))
+            target.set_ylim(lo, hi)
+        if (not has_hrc or outer_hrb) and not _hrb_ticks(target, lo, hi, short=has_hrc) and not has_hrc:
+            right.set_yticks([])
+            right.set_ylabel("(HRC, HRB do not apply here)", color="#666666")
+    elif not has_hrc:
+        right.set_yticks([])
+        right.set_ylabel("(HRC does not apply here)", color="#666666")
+    return right
+
+
+def _hrb_ticks(axis, lo: float, hi: float, short: bool = False) -> bool:
+    """Rockwell B ticks (ASTM E140, where the table covers them) on axis; False if fewer than two fit."""
+    from .hardness import hrb_from_hv
+
     grid = np.linspace(max(lo, 1.0), hi, 400)
     hrb = hrb_from_hv(grid)
     ok = np.isfinite(hrb)
-    if ok.sum() >= 2:
-        b_lo, b_hi = float(hrb[ok].min()), float(hrb[ok].max())
-        step = _nice_step(b_hi - b_lo, 5)
-        ticks = np.arange(np.ceil(b_lo / step) * step, b_hi + 1e-9, step)
-        right.set_yticks(np.interp(ticks, hrb[ok], grid[ok]))
-        right.set_yticklabels([f"{t:.0f}" for t in ticks])
-        right.set_ylabel("Rockwell B HRB (ASTM E140)", color="#666666")
-    else:
-        right.set_yticks([])
-        right.set_ylabel("(HRC, HRB do not apply here)", color="#666666")
-    return right
+    if ok.sum() < 2:
+        return False
+    b_lo, b_hi = float(hrb[ok].min()), float(hrb[ok].max())
+    step = _nice_step(max(b_hi - b_lo, 1.0), 5)
+    ticks = np.arange(np.ceil(b_lo / step) * step, b_hi + 1e-9, step)
+    if ticks.size < 2:
+        return False
+    axis.set_yticks(np.interp(ticks, hrb[ok], grid[ok]))
+    axis.set_yticklabels([f"{t:.0f}" for t in ticks])
+    axis.set_ylabel("HRB" if short else "Rockwell B HRB (ASTM E140)", color="#666666")
+    return True
 
 
 def requirement_line(ax, req, scale: str, total_mm: float, colour: str = "#c77d1a", length=None,
@@ -214,7 +235,7 @@ def hardness_figure(result, out_dir: Path, units=None) -> list[Path]:
     scale = hardness_scale(result.hv, tempered)
     total = result.history.section.thickness_m * 1000.0
     fig, ax = plt.subplots(figsize=(7.0, 4.6))
-    fig.subplots_adjust(bottom=0.2, right=0.86, top=0.8)
+    fig.subplots_adjust(bottom=0.2, right=0.8, top=0.8)  # room for HV/HRC and an outer HRB scale
     curves = [(result.hv, "as quenched", "-", 2.0)]
     if tempered is not None:
         t = result.extra.get("temper", {})
@@ -306,7 +327,7 @@ def compare_figures(comparison, out_dir: Path, units=None) -> list[Path]:
     ax.set_xlim(0, u.length(total))
     ax.set_xlabel(f"depth below the quenched surface [{u.length_unit}]")
     ax.grid(True, color="#e5e5e5", lw=0.6)
-    finish_hardness_axis(ax, scale, np.concatenate(drawn))
+    finish_hardness_axis(ax, scale, np.concatenate(drawn), outer_hrb=False)
     requirement_line(ax, req, scale, total, colour="#555555", length=u.length, wrap=32, units=u)
     ax.legend(frameon=False, fontsize=7.5, loc="upper left", bbox_to_anchor=(1.13, 1.0))
     ax.set_title(f"{comparison.case.title or 'case'}: hardness by quenchant", fontsize=10, loc="left")

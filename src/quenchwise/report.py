@@ -249,7 +249,7 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
         info.text(0.24, y, v, fontsize=8, color="black", va="top")
         y -= 0.165 + 0.1 * v.count("\n")  # a wrapped value pushes the next line down
 
-    ax = fig.add_axes([0.10, 0.475, 0.78, 0.19])
+    ax = fig.add_axes([0.10, 0.475, 0.74, 0.19])  # room on the right for HRC and an outer HRB scale
     hv = final_hv(result)
     scale = hardness_scale(hv, result.hv)
     total = result.history.section.thickness_m * 1000.0
@@ -268,8 +268,8 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
     ax.grid(True, color="#e6e6e6", lw=0.6)
     right = finish_hardness_axis(ax, scale, np.concatenate(drawn))
     requirement_line(ax, req, scale, total, colour=ACCENT, length=u.length, units=u)
-    for a in (ax, right):
-        a.tick_params(labelsize=7.5)
+    for a in [ax, right] + [t for t in fig.axes if t not in (ax, right) and t.get_position().bounds == ax.get_position().bounds]:
+        a.tick_params(labelsize=7.5)  # the main axis and its twins (HRC / HV, an outer HRB scale)
         a.yaxis.label.set_size(8)
     ax.legend(frameon=False, fontsize=7, loc="lower left", bbox_to_anchor=(0.0, 1.0), ncol=3)
 
