@@ -21,6 +21,7 @@ from .steel.grades import find_grade
 from .thermal.geometry import Section
 from .thermal.quenchants import Quenchant, htc_from_grossmann, load_quenchant
 from .thermal.solver import SolverSettings
+from .units import US_KEYS, si_keys
 
 SECTIONS = {
     "title": {},
@@ -34,7 +35,12 @@ SECTIONS = {
     "mesh": {"cells", "growth", "max_temperature_step_k", "max_fraction_step", "max_relative_step"},
     "requirement": {"min_hrc", "min_martensite_pct", "depth_mm"},
     "compare": {"media"},
+    "record": set(),  # filled below from RECORD_KEYS
 }
+#: [record]: the sheet's controlled-record fields, every one optional, all text (date may be a TOML date).
+RECORD_KEYS = ("part_number", "drawing_number", "revision", "customer", "order_number", "material_spec",
+               "heat_number", "hardness_test", "prepared_by", "checked_by", "approved_by", "date", "notes")
+SECTIONS["record"] = set(RECORD_KEYS)
 MODELS = ("li1998", "kirkaldy1983", "li1998-a255", "none")
 MARTENSITE_LAWS = ("koistinen_marburger", "van_bohemen_sietsma")
 SHAPE_NAMES = ("plate", "bar", "tube", "sphere")
@@ -105,6 +111,7 @@ class Case:
     dimensions_mm: dict = field(default_factory=dict)
     source_text: str = ""
     source_name: str = ""
+    record: dict = field(default_factory=dict)
 
     @property
     def source_sha256(self) -> str:
@@ -244,13 +251,15 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
     for name, value in data.items():
         if name not in SECTIONS:
             raise InputError(_short(name), "(table)" if isinstance(value, dict) else value,
-                             "a known section: " + ", ".join(SECTIONS))
+                             "a known section: " + ", ".join(SECTIONS) + _did_you_mean(name, SECTIONS))
         if name != "title":
             if not isinstance(value, dict):
                 raise InputError(name, value, f"a [{name}] table")
             for key in value:
-                if key not in SECTIONS[name]:
-                    raise InputError(f"{name}.{_short(key)}", value[key], f"a key of [{name}]: " + ", ".join(sorted(SECTIONS[name])))
+                if key not in SECTIONS[name] and key not in US_KEYS.get(name, {}):
+                    raise InputError(f"{name}.{_short(key)}", value[key], f"a key of [{name}]: " + ", ".join(sorted(SECTIONS[name]))
+                                     + _did_you_mean(key, SECTIONS[name] | set(US_KEYS.get(name, {}))))
+    data = si_keys(data)  # inch / Fahrenheit keys -> SI keys (pint), before any range check
     for required in ("steel", "part", "quench"):
         if required not in data:
             raise InputError(required, "(missing)", f"a [{required}] table")
@@ -343,8 +352,33 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         outer=outer, inner=inner, end_c=end_c, model=model, martensite=martensite, temper=temper,
         conductivity_w_mk=k, density_kg_m3=rho, specific_heat_j_kgk=cp, settings=settings,
         requirement=requirement, compare_media=compare_media, dimensions_mm=dims,
-        source_text=source_text, source_name=source_name,
+        source_text=source_text, source_name=source_name, record=_record(data.get("record", {})),
     )
+
+
+def _did_you_mean(word: str, choices) -> str:
+    """'; did you mean X?' for a near miss of a known name (difflib), else ''."""
+    import difflib
+
+    close = difflib.get_close_matches(str(word).lower(), [str(c) for c in choices], n=1, cutoff=0.6)
+    return f"; did you mean {close[0]!r}?" if close else ""
+
+
+def _record(table: dict) -> dict:
+    """[record]: text values (a TOML date or a number is taken as written), in RECORD_KEYS order."""
+    out = {}
+    for key in RECORD_KEYS:
+        if key not in table:
+            continue
+        v = table[key]
+        if isinstance(v, (bool, list, dict)) or v is None:
+            raise InputError(f"record.{key}", v, "a text (e.g. \"DWG-1047\") or, for date, a date")
+        text = str(v).strip()
+        if len(text) > 200:
+            raise InputError(f"record.{key}", text, "a text of at most 200 characters")
+        if text:
+            out[key] = text
+    return out
 
 
 def load_case(path: str | Path, defaults: dict | None = None) -> Case:
@@ -371,4 +405,6 @@ def load_case(path: str | Path, defaults: dict | None = None) -> Case:
     try:
         return parse_case(data, text, name, p.parent)
     except InputError as exc:
-        raise exc.with_source(name) from None
+        from .units import renamed_error, us_origins
+
+        raise renamed_error(exc, us_origins(data)).with_source(name) from None

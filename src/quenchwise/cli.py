@@ -23,7 +23,8 @@ from . import publish
 from .cautions import CAUTION
 from .errors import InputError
 
-app = typer.Typer(add_completion=False, no_args_is_help=True,
+# rich_markup_mode=None: help texts are plain text, so "[requirement]" or "[C]" is printed, not eaten as markup.
+app = typer.Typer(add_completion=False, no_args_is_help=True, rich_markup_mode=None,
                   help="quenchwise: predict the hardness of a quenched steel part from surface to core.")
 
 OUTPUT_MARKERS = ("result.h5", "profile.csv")
@@ -125,85 +126,91 @@ class _Progress:
         return False
 
 
-def _summary_text(summary: dict, files: list[Path]) -> str:
-    s = summary
-    steel = s["steel"]
-    chem = ", ".join(f"{k.capitalize()} {v:g}" for k, v in steel["composition_wt_pct"].items() if v > 0)
-    lines = [
-        f"quenchwise {__version__}  |  {s['title'] or 'untitled case'}",
-        f"steel   {steel['grade'] or 'custom'} ({chem} wt%), grain size {steel['grain_size']:g}, "
-        f"austenitized at {steel['austenitize_c']:g} C",
-        f"        Ae1 {steel['ae1_c']:.0f} C, Ae3 {steel['ae3_c']:.0f} C"
-        + (f", Acm {steel['acm_c']:.0f} C" if steel["acm_c"] else "")
-        + (f", Ms {steel['ms_c']:.0f} C" if steel["ms_c"] is not None else "")
-        + f"  ({steel['critical_temperatures']})",
-        f"part    {s['part']['shape']} " + ", ".join(f"{k} {v}" for k, v in s["part"].items() if k != "shape"),
-        f"quench  {s['quench']['outer']} at {s['quench']['bath_c']:g} C"
-        + (f" (equivalent Grossmann H {s['quench']['equivalent_h_per_inch']:.2f} 1/in)"
-           if s["quench"].get("equivalent_h_per_inch") is not None else "")
-        + (f"; bore: {s['quench']['inner']}" if s["quench"]["inner"] else "")
-        + f"; until the hottest point is below {s['quench']['end_c']:g} C ({s['time_to_end_s']:.1f} s, {s['steps']} steps)",
-        "",
-        f"{'location':<20}{'depth mm':>9}{'HRC':>7}{'HV':>7}{'martensite %':>14}{'bainite %':>11}{'ferr+pearl %':>14}{'ret. aust %':>13}{'Jominy mm':>11}",
-    ]
-    for p in s["points"]:
-        hrc = "-" if p["hrc"] is None else f"{p['hrc']:.1f}"
-        hv = "-" if p["hv"] is None else f"{p['hv']:.0f}"
-        lines.append(f"{p['location']:<20}{p['depth_mm']:>9.2f}{hrc:>7}{hv:>7}{p['martensite_pct']:>14.1f}"
-                     f"{p['bainite_pct']:>11.1f}{p['ferrite_pearlite_pct']:>14.1f}{p['retained_austenite_pct']:>13.1f}"
-                     f"{_fmt(p.get('jominy_distance_mm'), '{:.1f}'):>11}")
-    if "temper" in s:
-        t = s["temper"]
-        lines.append(f"temper  {t['hours']:g} h at {t['temperature_c']:g} C: " + ", ".join(
-            f"{p['location']} " + (f"{p['hrc_tempered']:.1f} HRC" if p.get("hrc_tempered") is not None
-                                   else f"{_fmt(p.get('hrb_tempered'))} HRB") + f" ({_fmt(p.get('hv_tempered'), '{:.0f}')} HV)"
-            for p in s["points"]) + f"  ({t['method']})")
-    if "di" in s:
-        lines.append(f"DI      {s['di']['a255']['in']:.2f} in ({s['di']['a255']['mm']:.0f} mm) from composition, "
-                     "ASTM A255; the simulated DI: quenchwise jominy")
-    lines.append(f"models  kinetics {s['models']['kinetics']}, martensite {s['models']['martensite']}, "
-                 f"hardness {s['models']['hardness']}")
-    for w in s["warnings"]:
-        lines.append(f"warning {w}")
-    if files:
-        lines.append("wrote   " + ", ".join(str(f) for f in files))
-    lines.append("")
-    lines.append(CAUTION)
-    return "\n".join(lines)
+def _summary_text(summary: dict, files: list[Path], units=None) -> str:
+    from .text_output import run_summary_text
+
+    return run_summary_text(summary, files, units)
+
+
+def _units_option(value: str):
+    from .units import Units
+
+    return Units(value.strip().lower())
+
+
+def _refined(case, fine: bool):
+    """With fine: the kinetics time step limited to 1 % of a phase per step (unless the case asks
+    for finer), which removes the few-tenths-HRC wiggles the default 5 % leaves in profiles."""
+    from dataclasses import replace
+
+    if not fine or case.settings.max_fraction_step <= 0.01:
+        return case, ""
+    return (replace(case, settings=replace(case.settings, max_fraction_step=0.01)),
+            "Numerics refined for this record: at most 1 % of a phase forms per time step.")
 
 
 @app.command()
 def run(
-    case_file: Path = typer.Argument(..., help="Case file (TOML)."),
-    out: Path = typer.Option(..., "--out", "-o", help="Folder for result.h5, profile.csv and figures."),
+    case_file: Optional[Path] = typer.Argument(None, help="Case file (TOML); or leave it out and give --grade, "
+                                                           "a section (--bar, --plate or --sphere) and --medium."),
+    out: Optional[Path] = typer.Option(None, "--out", "-o", help="Folder for result.h5, profile.csv and figures "
+                                                                 "(leave it out to print the summary and write nothing)."),
     json_out: bool = typer.Option(False, "--json", help="Print the summary as one JSON object, nothing else."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+    grade: Optional[str] = typer.Option(None, "--grade", help="Quick run: a built-in grade or its EN name (no case file)."),
+    bar: Optional[float] = typer.Option(None, "--bar", help="Quick run: bar diameter [mm]."),
+    plate: Optional[float] = typer.Option(None, "--plate", help="Quick run: plate thickness [mm], both faces quenched."),
+    sphere: Optional[float] = typer.Option(None, "--sphere", help="Quick run: sphere diameter [mm]."),
+    medium: Optional[str] = typer.Option(None, "--medium", "-m", help="Quick run: quenchant name or curve CSV path."),
+    austenitize_c: Optional[float] = typer.Option(None, "--austenitize-c", help="Quick run: austenitizing "
+                                                  "temperature [C] (default: the grade's)."),
+    units: str = typer.Option("si", "--units", help="Output units: si (mm, C) or us (in, F) for the text, the "
+                                                    "CSV columns and the figures; result.h5 stays SI."),
+    fine: bool = typer.Option(False, "--fine", help="Finer time steps in the kinetics (smoother profile, "
+                                                    "about 2-3 times the time)."),
 ) -> None:
-    """Simulate the quench of one part and write its hardness profile."""
+    """Simulate the quench of one part and print its hardness profile; with --out also write it."""
     with _guard():
         from .case import load_case
         from .plots import cooling_figure, hardness_figure
-        from .results import write_profile_csv, write_result_h5
+        from .results import profile_csv_text, write_result_h5
+        from .units import us_csv_text
         from .workflows import attach_equivalent_severity, simulate_case
 
-        _check_out_dir(out, overwrite)
-        case = load_case(case_file)
-        _activity(f"solving the quench of {case_file}")
+        u = _units_option(units)
+        quick = {"grade": grade, "bar_mm": bar, "plate_mm": plate, "sphere_mm": sphere, "medium": medium,
+                 "austenitize_c": austenitize_c}
+        given = [f"--{k.replace('_mm', '').replace('_', '-')}" for k, v in quick.items() if v is not None]
+        if case_file is not None and given:
+            raise InputError(given[0], "(with a case file)", "either a case file or the quick-run options, not both")
+        if out is not None:
+            _check_out_dir(out, overwrite)
+        if case_file is None:
+            from .quick import quick_case
+
+            case = quick_case(**quick)
+        else:
+            case = load_case(case_file)
+        case, _ = _refined(case, fine)
+        _activity(f"solving the quench of {case_file or 'the quick case'}")
         with _Progress(not json_out, "quenching") as progress:
             result = simulate_case(case, progress)
             attach_equivalent_severity([result])
-        with _staged(out) as (staging, files):
-            write_result_h5(result, staging / "result.h5")
-            write_profile_csv(result, staging / "profile.csv")
-            hardness_figure(result, staging)
-            cooling_figure(result, staging)
+        files: list[Path] = []
+        if out is not None:
+            with _staged(out) as (staging, files):
+                write_result_h5(result, staging / "result.h5")
+                text = profile_csv_text(result)
+                (staging / "profile.csv").write_text(us_csv_text(text) if u.us else text, "utf-8")
+                hardness_figure(result, staging, u)
+                cooling_figure(result, staging, u)
         summary = result.summary()
         if json_out:
             summary["files"] = [str(f) for f in files]
             summary["caution"] = CAUTION
             typer.echo(json.dumps(summary))
         else:
-            typer.echo(_summary_text(summary, files))
+            typer.echo(_summary_text(summary, files, u))
 
 
 @app.command()
@@ -224,7 +231,8 @@ def steels(json_out: bool = typer.Option(False, "--json", help="Print the list a
         typer.echo(f"{g.name:<8}{g.en or '-':<10}{g.family:<30}" + "".join(f"{n.get(e, 0):>6.2f}" for e in ("c", "mn", "si", "ni", "cr", "mo", "v"))
                    + f"{g.austenitize_c:>8.0f}")
     typer.echo("Nominal chemistry in wt% (midpoints of the specification ranges, recalled from SAE/EN standards: check "
-               "against the current standard and the mill certificate).")
+               "against the current standard and the mill certificate). A grade may be given by the EN name listed "
+               "here (e.g. grade = \"42CrMo4\").")
 
 
 @app.callback(invoke_without_command=True)
@@ -253,6 +261,8 @@ def compare(
     out: Path = typer.Option(..., "--out", "-o", help="Folder for compare.csv and figures."),
     json_out: bool = typer.Option(False, "--json", help="Print the table as one JSON object, nothing else."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+    units: str = typer.Option("si", "--units", help="Output units: si (mm, C) or us (in, F) for the text, "
+                                                    "compare.csv and the figures; --json stays SI."),
 ) -> None:
     """The same part in several quenchants, solved as one batch."""
     with _guard():
@@ -262,6 +272,7 @@ def compare(
         from .thermal.quenchants import load_quenchant
         from .workflows.compare import compare as compare_media
 
+        u = _units_option(units)
         _check_out_dir(out, overwrite, markers=("compare.csv",))
         case = load_case(case_file)
         media = [load_quenchant(m, key="--medium") for m in medium] or list(case.compare_media)
@@ -270,26 +281,24 @@ def compare(
         _activity(f"solving {len(media)} quenches of {case_file}")
         with _Progress(not json_out, "comparing") as progress:
             result = compare_media(case, media, progress)
+        if case.requirement is None:  # nothing to meet: the table and JSON say n/a (empty) instead of false
+            for r in result.rows:
+                r["meets_requirement"] = None
         with _staged(out) as (staging, files):
             write_table_csv(staging / "compare.csv", result.rows)
-            compare_figures(result, staging)
+            if u.us:
+                from .units import us_csv_text
+
+                (staging / "compare.csv").write_text(us_csv_text((staging / "compare.csv").read_text("utf-8")), "utf-8")
+            compare_figures(result, staging, u)
+        from .text_output import compare_text
+
         best = result.best()
-        lines = [f"{case.title or 'case'}: {len(media)} quenchants, one batch",
-                 f"{'medium':<30}{'H 1/in':>8}{'surf HRC':>10}{'half HRC':>10}{'ctr HRC':>9}{'ctr M %':>9}"
-                 f"{'eff. depth mm':>15}{'meets':>7}  crack risk"]
-        for r in result.rows:
-            lines.append(f"{r['medium']:<30}{_fmt(r['equivalent_h'], '{:.2f}'):>8}{_fmt(r['surface_hrc']):>10}"
-                         f"{_fmt(r['half_hrc']):>10}{_fmt(r['centre_hrc']):>9}{r['centre_martensite_pct']:>9.1f}"
-                         f"{r['effective_depth_mm']:>15.2f}{('yes' if r['meets_requirement'] else 'no'):>7}  {r['crack_risk']}")
-        lines.append(f"effective depth: to {result.rows[0]['limit_hrc']:g} HRC "
-                     + ("(the requirement)" if case.requirement and case.requirement.min_hrc else "(50 % martensite, Hodge & Orehoski)"))
-        if case.requirement is not None:
-            lines.append(f"requirement: {case.requirement.describe()}; mildest that meets it: "
-                         + (best["medium"] if best else "none of these"))
-        lines.append("crack risk: common-practice rule on austenite carbon and severity (see workflows/compare.py)")
-        lines.append("wrote   " + ", ".join(str(f) for f in files))
+        text = compare_text(case.title, result.rows, case.requirement.describe() if case.requirement else None, files,
+                            best["medium"] if best else None,
+                            bool(case.requirement and case.requirement.min_hrc), u)
         _emit(json_out, {"title": case.title, "rows": result.rows, "mildest_meeting": best["medium"] if best else None,
-                         "files": [str(f) for f in files]}, "\n".join(lines))
+                         "files": [str(f) for f in files]}, text)
 
 
 def _requirement_from_options(case, min_hrc, min_martensite, depth_mm):
@@ -317,6 +326,8 @@ def size(
     depth_mm: Optional[float] = typer.Option(None, "--depth-mm", help="Down to this depth (default: centre)."),
     json_out: bool = typer.Option(False, "--json", help="Print the answers as one JSON object, nothing else."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+    units: str = typer.Option("si", "--units", help="Output units: si (mm, C) or us (in, F) for the text, "
+                                                    "the CSV and the figures; --json stays SI."),
 ) -> None:
     """Mildest severity, the quenchants that do it, and the largest section that meets a requirement."""
     with _guard():
@@ -324,6 +335,7 @@ def size(
         from .plots import sizing_figure
         from .workflows.size import size as size_answer
 
+        u = _units_option(units)
         _check_out_dir(out, overwrite, markers=("sizing.json",))
         case = load_case(case_file)
         req = _requirement_from_options(case, min_hrc, min_martensite, depth_mm)
@@ -335,22 +347,12 @@ def size(
         payload = {"title": case.title, **answer.as_dict()}
         with _staged(out) as (staging, files):
             (staging / "sizing.json").write_text(json.dumps(payload, indent=2), "utf-8")
-            sizing_figure(answer, staging)
-        d = payload
-        sev, big = d["mildest_severity"], d["largest_size"]
-        lines = [f"{case.title or 'case'}: {d['requirement']}",
-                 ("mildest constant severity: H = {:.3g} 1/in (h = {:.0f} W/m2K); H = {:.3g} does not meet it".format(
-                     sev["grossmann_h_per_inch"], sev["htc_w_m2k"], sev["next_milder_h_per_inch"])
-                  if sev["reachable"] and sev["next_milder_h_per_inch"] is not None else
-                  ("met even by the mildest severity tried" if sev["reachable"] else
-                   "not reachable by quench severity alone: choose a more hardenable steel or a smaller section")),
-                 "built-in quenchants that meet it, mildest first: " + (", ".join(d["quenchants_meeting"]) or "none"),
-                 (f"largest {big['dimension']} in {case.outer.name}: {big['largest_passing_mm']:g} mm "
-                  + (f"({big['next_larger_failing_mm']:g} mm does not meet it)" if big["next_larger_failing_mm"] else "(largest tried)")
-                  if big["largest_passing_mm"] is not None else f"no {big['dimension']} tried meets it in {case.outer.name}")
-                 + f"; this part: {big['case_size_mm']:g} mm",
-                 "wrote   " + ", ".join(str(f) for f in files)]
-        _emit(json_out, {**payload, "files": [str(f) for f in files]}, "\n".join(lines))
+            sizing_figure(answer, staging, u)
+        from .text_output import SEVERITY_NOTE, size_text
+
+        payload["severity_note"] = SEVERITY_NOTE
+        text = size_text(case.title, payload, case.outer.name, files, u)
+        _emit(json_out, {**payload, "files": [str(f) for f in files]}, text)
 
 
 @app.command()
@@ -361,6 +363,8 @@ def band(
     seed: int = typer.Option(1, "--seed", help="Random seed (same seed, same answer)."),
     json_out: bool = typer.Option(False, "--json", help="Print the band summary as one JSON object, nothing else."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+    units: str = typer.Option("si", "--units", help="Output units: si (mm, C) or us (in, F) for the text, "
+                                                    "the CSV and the figures; --json stays SI."),
 ) -> None:
     """Hardness band over the grade's chemistry range (seeded Monte Carlo, one batch)."""
     with _guard():
@@ -371,6 +375,7 @@ def band(
         from .results import write_table_csv
         from .workflows.band import band as band_run
 
+        u = _units_option(units)
         _check_out_dir(out, overwrite, markers=("band.csv",))
         case = load_case(case_file)
         _activity(f"solving {samples} sampled heats of {case_file}")
@@ -383,7 +388,11 @@ def band(
                 for i, d in enumerate(b.depth_mm)]
         with _staged(out) as (staging, files):
             write_table_csv(staging / "band.csv", rows)
-            band_figure(b, staging)
+            if u.us:
+                from .units import us_csv_text
+
+                (staging / "band.csv").write_text(us_csv_text((staging / "band.csv").read_text("utf-8")), "utf-8")
+            band_figure(b, staging, u)
         share = b.share_meeting()
         surface, centre = rows[0], rows[-1]
         lines = [f"{case.title or 'case'}: {case.grade} chemistry range, {samples} heats (seed {seed}), one batch",
@@ -415,21 +424,31 @@ def sheet(
     out: Path = typer.Option(..., "--out", "-o", help="Folder for sheet.pdf and sheet.png."),
     json_out: bool = typer.Option(False, "--json", help="Print the sheet's numbers as one JSON object, nothing else."),
     overwrite: bool = typer.Option(False, "--overwrite", help="Replace results already in --out."),
+    page: str = typer.Option("a4", "--page", help="Page size: a4 or letter."),
+    units: str = typer.Option("si", "--units", help="Units on the sheet: si (mm, C) or us (in, F)."),
+    fine: bool = typer.Option(True, "--fine/--default-steps", help="Finer kinetics time steps for the record "
+                                                                  "(default; the sheet says so)."),
 ) -> None:
-    """A one-page hardening sheet (PDF and PNG) for the drawing or the process record."""
+    """A one-page hardening sheet (PDF and PNG) for the drawing or the process record; its [record]
+    table fills the part, drawing, revision and sign-off fields."""
     with _guard():
         from .case import load_case
         from .report import key_numbers, sheet_rows, write_sheet
         from .workflows import attach_equivalent_severity, simulate_case
 
+        page = page.strip().lower()
+        if page not in ("a4", "letter"):
+            raise InputError("--page", page, "a4 or letter")
+        u = _units_option(units)
         _check_out_dir(out, overwrite, markers=("sheet.pdf",))
         case = load_case(case_file)
+        case, refined_note = _refined(case, fine)
         _activity(f"solving the quench of {case_file}")
         with _Progress(not json_out, "quenching") as progress:
             result = simulate_case(case, progress)
             attach_equivalent_severity([result])
         with _staged(out) as (staging, files):
-            write_sheet(result, staging)
+            write_sheet(result, staging, page=page, units=u, refined=refined_note)
         keys = key_numbers(result)
         rows = sheet_rows(result)
         lines = [f"{case.title or 'case'}: hardening sheet",
@@ -438,7 +457,8 @@ def sheet(
         if keys["requirement"]:
             lines.append(("MET: " if keys["meets_requirement"] else "NOT MET: ") + keys["requirement"])
         lines.append("wrote   " + ", ".join(str(f) for f in files))
-        _emit(json_out, {"title": case.title, "key_numbers": keys, "depths": rows, "case_sha256": case.source_sha256,
+        _emit(json_out, {"title": case.title, "record": case.record, "key_numbers": keys, "depths": rows,
+                         "warnings": result.warnings(), "case_sha256": case.source_sha256,
                          "files": [str(f) for f in files]}, "\n".join(lines))
 
 

@@ -176,7 +176,7 @@ def test_full_file_system_is_one_line_and_keeps_the_old_result(capsys, monkeypat
     def full(result, path):
         raise OSError(errno.ENOSPC, "No space left on device", str(path))
 
-    monkeypatch.setattr(quenchwise.results, "write_profile_csv", full)
+    monkeypatch.setattr(quenchwise.results, "write_result_h5", full)
     status, _, err = entry(capsys, monkeypatch, "run", cases_dir / "shaft_water.toml", "--out", out, "--overwrite")
     one_line_2(status, err, "--out", "No space left on device")
     assert sorted(p.name for p in out.iterdir()) == ["result.h5"] and (out / "result.h5").read_bytes() == b"earlier"

@@ -21,6 +21,18 @@ Method
    about 200-300 C; common practice, no source); undissolved carbide is left out, and the
    phases are mixed by the same rule as the as-quenched hardness (phases.combine_phases_hv).
 
+4. Low-temperature tempering of high-carbon martensite (first stage: transition-carbide
+   precipitation from the supersaturated martensite, about 100-250 C). The table above starts at
+   205 C and is fitted up to about 0.6 %C, so for a 1 %C steel it gives no drop at 150-200 C,
+   where bearing and tool steels are tempered and do lose a few HRC. On the as-quenched mixture the
+   drop low_temper_drop_hrc(T1, C) x martensite fraction (HRC) is therefore applied as a ceiling.
+   The drop is a piecewise-linear relation written to match the handbook tempering response of
+   52100 (ASM Handbook Vol. 4 / Heat Treater's Guide, memory: as quenched 64-67 HRC; tempered
+   150-230 C for 2-4 h, 58-64 HRC) and of 1095 (same sources, memory: about 2-4 HRC lost by 1 h at
+   205 C): 0 at 100 C, 2.0 HRC at 150 C, 4.0 HRC at 205 C and above (1-h equivalent, full for
+   1.0 %C austenite), scaled linearly with the austenite carbon from 0 at 0.25 %C (low-carbon
+   martensite has little carbon to precipitate; common practice, no source).
+
 Validity: low-alloy steels of about 0.1-0.6 %C (the paper's range, memory) tempered between about
 205 and 650 C for 1-h equivalents; outside that the result is held at the nearest table row and
 a warning is returned.
@@ -47,6 +59,28 @@ RETAINED_AUSTENITE_DECOMPOSES_C = 250.0
 #: Temper below which no softening is counted [C].
 NO_TEMPERING_BELOW_C = 100.0
 _ELEMENTS = ("mn", "si", "ni", "cr", "mo", "v")
+#: First-stage drop of high-carbon martensite (module docstring, step 4): (1-h equivalent C, HRC).
+LOW_TEMPER_DROP = ((100.0, 0.0), (150.0, 2.0), (205.0, 4.0))
+#: Austenite carbon [wt%] at which the drop is zero / full.
+LOW_TEMPER_CARBON = (0.25, 1.0)
+
+
+def low_temper_drop_hrc(one_hour_c, carbon):
+    """HRC lost by fully martensitic high-carbon steel in the first tempering stage (step 4 of the
+    module docstring): piecewise linear in the 1-h equivalent temperature one_hour_c [C] through
+    (100, 0), (150, 2.0), (205, 4.0) and held beyond, times (C - 0.25) / 0.75 clipped to 0-1 for the
+    austenite carbon C [wt%]. Written to match the handbook tempering response of 52100 and 1095
+    (ASM Handbook Vol. 4 / Heat Treater's Guide, memory); valid about 0.25-1.1 %C, 100-250 C.
+
+    >>> [round(float(low_temper_drop_hrc(t, 1.0)), 2) for t in (90.0, 150.0, 166.5, 205.0, 300.0)]
+    [0.0, 2.0, 2.6, 4.0, 4.0]
+    >>> round(float(low_temper_drop_hrc(166.5, 0.40)), 2), float(low_temper_drop_hrc(166.5, 0.2))
+    (0.52, 0.0)
+    """
+    temps, drops = zip(*LOW_TEMPER_DROP)
+    share = np.clip((np.asarray(carbon, dtype=float) - LOW_TEMPER_CARBON[0])
+                    / (LOW_TEMPER_CARBON[1] - LOW_TEMPER_CARBON[0]), 0.0, 1.0)
+    return np.interp(np.asarray(one_hour_c, dtype=float), temps, drops) * share
 
 
 def hollomon_jaffe_parameter(temperature_c, hours, constant=DEFAULT_HJ_CONSTANT):
@@ -160,4 +194,18 @@ def tempered_hardness_hv(fractions: dict, rate_700_c_s, chem: dict, temperature_
     # Mixed by the same rule as the as-quenched hardness, so a temper never reads harder than it.
     hv = combine_phases_hv(fractions, hv_tm, np.minimum(phases["bainite"], hv_tm),
                            np.minimum(phases["ferrite_pearlite"], hv_tm), ra_hv, undissolved_cementite)
+    # Step 4: the first-stage drop of high-carbon martensite, on the as-quenched mixture, in HRC.
+    zero = np.zeros_like(phases["martensite"])
+    martensite = np.asarray(fractions.get("martensite", zero), dtype=float)
+    # share of martensite in the matrix (undissolved carbide left out, as in the mixture)
+    total = sum(np.asarray(fractions.get(k, zero), dtype=float) for k in fractions) - undissolved_cementite
+    drop = low_temper_drop_hrc(t1, chem.get("c", 0.0)) * martensite / np.where(total > 0, total, 1.0)
+    if np.any(drop > 0):
+        from .conversion import hrc_from_hv, hv_from_hrc
+
+        as_quenched = combine_phases_hv(fractions, phases["martensite"], phases["bainite"],
+                                        phases["ferrite_pearlite"], RETAINED_AUSTENITE_HV, undissolved_cementite)
+        hrc0 = hrc_from_hv(as_quenched)
+        ceiling = hv_from_hrc(np.clip(hrc0 - drop, 20.0, 68.0))
+        hv = np.where(np.isfinite(hrc0) & np.isfinite(ceiling), np.minimum(hv, ceiling), hv)
     return hv, notes

@@ -42,13 +42,25 @@ def grades() -> dict[str, Grade]:
 
 
 def find_grade(name: str, key: str = "steel.grade") -> Grade:
-    """A grade by designation, case-insensitive (e.g. "4140", "52100", "8620H").
+    """A grade by designation, case-insensitive (e.g. "4140", "52100", "8620H"), or by the EN/DIN
+    name the table lists as its counterpart (e.g. "42CrMo4").
 
     >>> find_grade("4140h").en
     ''
+    >>> find_grade("42crmo4").name
+    '4140'
     """
     table = grades()
-    found = table.get(str(name).strip().upper())
+    wanted = str(name).strip().upper()
+    found = table.get(wanted)
+    if found is None:  # the EN / DIN name the table lists as the counterpart (e.g. 42CrMo4 -> 4140)
+        found = next((g for g in table.values() if g.en and g.en.upper() == wanted), None)
     if found is None:
-        raise InputError(key, name, "one of the built-in grades: " + ", ".join(g.name for g in table.values()))
+        import difflib
+
+        names = {**{g.name.upper(): g.name for g in table.values()}, **{g.en.upper(): g.en for g in table.values() if g.en}}
+        close = difflib.get_close_matches(wanted, names, n=1, cutoff=0.6)
+        hint = f"; did you mean {names[close[0]]!r}?" if close else ""
+        raise InputError(key, name, "one of the built-in grades: " + ", ".join(g.name for g in table.values())
+                         + " (or the EN name `quenchwise steels` lists)" + hint)
     return found
