@@ -34,6 +34,8 @@ SECTIONS = {
     "compare": {"media"},
 }
 MODELS = ("li1998", "kirkaldy1983", "li1998-a255", "none")
+#: Kinetics model of a case without [transform] model (the scorecard, benchmarks/accuracy.py, decides).
+DEFAULT_MODEL = "li1998"
 MARTENSITE_LAWS = ("koistinen_marburger", "van_bohemen_sietsma")
 SHAPE_NAMES = ("plate", "bar", "tube", "sphere")
 #: Default end of the quench: the hottest point of the section below this [C].
@@ -244,7 +246,7 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         raise InputError("quench.end_c", end_c, f"a temperature below austenitize_c ({aust:g} C)")
 
     t = data.get("transform", {})
-    model = _choice(t, "transform", "model", MODELS, default="li1998")
+    model = _choice(t, "transform", "model", MODELS, default=DEFAULT_MODEL)
     martensite = _choice(t, "transform", "martensite", MARTENSITE_LAWS, default="koistinen_marburger")
 
     temper = None
