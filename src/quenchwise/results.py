@@ -18,6 +18,7 @@ import h5py
 import numpy as np
 
 from . import __version__
+from .hardness.phases import HARDNESS_METHOD
 from .kinetics import critical_temperature_note
 from .steel import AusteniteState
 from .thermal.solver import CaseHistory
@@ -115,7 +116,7 @@ class Result:
                        "equivalent_h_per_inch": self.extra.get("equivalent_h", {}).get("outer"),
                        "equivalent_h_inner_per_inch": self.extra.get("equivalent_h", {}).get("inner")},
             "models": {"kinetics": case.model, "martensite": case.martensite,
-                       "hardness": "Maynier, Jungmann & Dollet (1978); ASTM E140 conversion"},
+                       "hardness": f"{HARDNESS_METHOD}; ASTM E140 conversion"},
             "time_to_end_s": round(float(self.history.time_s[-1]), 3),
             "steps": self.history.steps,
             "points": rows,

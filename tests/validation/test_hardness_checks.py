@@ -6,6 +6,7 @@ import numpy as np
 import pytest
 
 from quenchwise.hardness import hardness_hv, hrb_from_hv, hrc_from_hv, hv_from_hrc
+from quenchwise.hardness.conversion import hv_from_hb
 from quenchwise.hardness.phases import RETAINED_AUSTENITE_HV, phase_hardness_hv
 from quenchwise.steel.grades import find_grade
 
@@ -17,28 +18,109 @@ def _hrc(fractions, rate_k_s, chem):
     return float(hrc_from_hv(hardness_hv(f, np.array([rate_k_s]), chem))[0])
 
 
-# Hodge & Orehoski (1946), Trans. AIME 167, 627 / Just: 99 % martensite about 20 + 60 sqrt(C) HRC,
-# 50 % martensite about 14 + 44 sqrt(C) HRC, C <= 0.6 (memory, +/-3 HRC; DOMAIN.md section 4).
+# Hodge & Orehoski (1946), Trans. AIME 167, 627, as tabulated in ASTM A255 (hardness against carbon
+# for 99.9 % and 50 % martensite; memory, +/-3 HRC): 50 % martensite reads 31.5 / 36.6 / 41.6 /
+# 45.8 / 49.2 HRC at 0.2 / 0.3 / 0.4 / 0.5 / 0.6 %C. DOMAIN.md's 14 + 44 sqrt(C) and 20 + 60 sqrt(C)
+# are fits of that table; the 50 % fit reads 2.2 HRC above the table at 0.2 %C, so the 50 % check
+# uses the table and the 99 % check the formula.
 # The mixture is run at 100 K/s at 700 C (a position about 2/16-3/16 in from the quenched end of
 # an end-quench bar) with the non-martensitic part as (fine) ferrite-pearlite, what plain carbon
 # steels form there.
+HO_50_TABLE = {0.2: 31.5, 0.3: 36.6, 0.4: 41.6, 0.5: 45.8, 0.6: 49.2}
+
+
 @pytest.mark.parametrize("carbon", [0.2, 0.3, 0.4, 0.5, 0.6])
 def test_hodge_orehoski_99_percent_martensite(carbon):
     got = _hrc({"martensite": 0.99, "pearlite": 0.01}, 100.0, dict(c=carbon, **PLAIN))
     assert got == pytest.approx(20.0 + 60.0 * np.sqrt(carbon), abs=3.0)
 
 
-# Measured misfit of the 50 % check at the ends of the range (-3.8 HRC at 0.2 %C, +3.4 at 0.6 %C):
-# Maynier's martensite hardness is linear in carbon where Hodge & Orehoski's curves go with
-# sqrt(C), so the two part at the ends. Kept as strict expected failures so a change shows.
-_ENDS = pytest.mark.xfail(strict=True, reason="linear-in-C Maynier vs sqrt(C) Hodge-Orehoski: "
-                                              "-3.8 HRC at 0.2 %C, +3.4 HRC at 0.6 %C (measured)")
+# Measured: -3.2 HRC at 0.2 %C (logarithmic mixture; the linear mixture with the pearlite correction
+# reads +0.4 there but +3.9 to +5.4 at 0.4-0.6 %C). At 0.2 %C the partner is mostly soft ferrite
+# (187 HV) and the mean of logarithms gives it much weight. Kept as a strict expected failure so a
+# change shows.
+_LOW_C = pytest.mark.xfail(strict=True, reason="logarithmic mixture, soft ferrite partner: -3.2 HRC at 0.2 %C (measured)")
 
 
-@pytest.mark.parametrize("carbon", [pytest.param(0.2, marks=_ENDS), 0.3, 0.4, 0.5, pytest.param(0.6, marks=_ENDS)])
+@pytest.mark.parametrize("carbon", [pytest.param(0.2, marks=_LOW_C), 0.3, 0.4, 0.5, 0.6])
 def test_hodge_orehoski_50_percent_martensite(carbon):
     got = _hrc({"martensite": 0.50, "pearlite": 0.50}, 100.0, dict(c=carbon, **PLAIN))
-    assert got == pytest.approx(14.0 + 44.0 * np.sqrt(carbon), abs=3.0)
+    assert got == pytest.approx(HO_50_TABLE[carbon], abs=3.0)
+
+
+def test_linear_mixture_with_fine_pearlite_is_too_hard_at_50_percent_martensite():
+    # Why the default mixture is logarithmic: with the corrected (fine) pearlite the arithmetic
+    # mean reads 50 % martensite of a 0.5 %C steel more than 3 HRC above Hodge & Orehoski (A255
+    # table, memory); the logarithmic mean is within 3 HRC.
+    chem = dict(c=0.5, **PLAIN)
+    f = {"martensite": np.array([0.5]), "pearlite": np.array([0.5])}
+    linear = float(hrc_from_hv(hardness_hv(f, np.array([100.0]), chem, rule="linear"))[0])
+    assert linear - HO_50_TABLE[0.5] > 3.0
+    assert abs(_hrc({"martensite": 0.5, "pearlite": 0.5}, 100.0, chem) - HO_50_TABLE[0.5]) <= 3.0
+
+
+# Normalized and annealed carbon steels, 25 mm (1 in) rounds: ASM Handbook Vol. 1 (1990), table of
+# properties of carbon steels normalized and annealed (memory). Normalized HB 131 / 149 / 170 / 217 /
+# 229 / 293 / 293, annealed HB 111 / 126 / 149 / 187 / 179 / 174 / 192 for 1020 / 1030 / 1040 /
+# 1050 / 1060 / 1080 / 1095. Chemistries: middles of the SAE J403 ranges (memory). The structure
+# is ferrite-pearlite; a 25 mm bar in still air cools at 1.67 K/s at 700 C (quenchwise's own
+# still-air solution), a furnace cool at about 0.01 K/s (20-40 C/h; common practice, no source).
+# Tolerance +/-35 HV: handbook HB of different heats scatter by about 10 % (memory); HB = HV below
+# 226 HB (ASTM E140, hardness/astm_e140.csv).
+CARBON_STEELS = {  # grade: (chemistry, normalized HB, annealed HB)
+    "1020": (dict(c=0.20, mn=0.45, si=0.25), 131, 111),
+    "1030": (dict(c=0.30, mn=0.75, si=0.25), 149, 126),
+    "1040": (dict(c=0.40, mn=0.75, si=0.25), 170, 149),
+    "1050": (dict(c=0.50, mn=0.75, si=0.25), 217, 187),
+    "1060": (dict(c=0.60, mn=0.75, si=0.25), 229, 179),
+    "1080": (dict(c=0.80, mn=0.75, si=0.25), 293, 174),
+    "1095": (dict(c=0.95, mn=0.40, si=0.25), 293, 192),
+}
+
+
+def _fp_hv(rate_k_s, chem, relations="corrected"):
+    return float(phase_hardness_hv(np.array([rate_k_s]), chem, relations)["ferrite_pearlite"][0])
+
+
+@pytest.mark.parametrize("grade", list(CARBON_STEELS))
+def test_normalized_carbon_steels(grade):
+    chem, hb, _ = CARBON_STEELS[grade]
+    assert _fp_hv(1.67, chem) == pytest.approx(float(hv_from_hb(hb)), abs=35.0)
+
+
+@pytest.mark.parametrize("grade", list(CARBON_STEELS))
+def test_annealed_carbon_steels(grade):
+    chem, _, hb = CARBON_STEELS[grade]
+    assert _fp_hv(0.01, chem) == pytest.approx(float(hv_from_hb(hb)), abs=35.0)
+
+
+def test_annealed_eutectoid_is_too_hard_with_the_published_relation():
+    # What the correction is for: Maynier's relation has almost no cooling-rate term for a plain
+    # carbon steel, so furnace-cooled 1080 reads about 90 HV above the handbook's 174 HB.
+    chem, _, hb = CARBON_STEELS["1080"]
+    assert _fp_hv(0.01, chem, "maynier1978") - float(hv_from_hb(hb)) > 60.0
+
+
+# Normalized low-alloy steels whose normalized structure is ferrite-pearlite (memory): 5140 229 HB,
+# 5160 269 HB, 8620 183 HB, 4130 197 HB (ASM Handbook Vol. 1 (1990), memory); grade nominals of the
+# built-in library. Same rate and tolerance as above.
+@pytest.mark.parametrize("grade,hb", [("5140", 229), ("5160", 269), ("8620", 183), ("4130", 197)])
+def test_normalized_low_alloy_ferrite_pearlite_steels(grade, hb):
+    assert _fp_hv(1.67, find_grade(grade).nominal) == pytest.approx(float(hv_from_hb(hb)), abs=35.0)
+
+
+@pytest.mark.parametrize("rate_k_s", [5.0, 10.0, 15.0, 25.0])
+def test_oil_quenched_1080_pearlite_reads_about_40_hrc(rate_k_s):
+    # 1080 bars quenched in oil read about 40 HRC where they are pearlitic (issue 12; handbook
+    # mass-effect data, memory, +/-3 HRC), i.e. at 5-25 K/s at 700 C (25-100 mm bars in oil).
+    # Fine pearlite of a eutectoid steel is about 40 HRC (isothermal atlases, memory).
+    got = float(hrc_from_hv(_fp_hv(rate_k_s, find_grade("1080").nominal)))
+    assert got == pytest.approx(40.0, abs=3.0)
+
+
+def test_oil_quenched_1080_was_too_soft_with_the_published_relation():
+    # The symptom of issue 12: Maynier's relation gives 27-28 HRC there.
+    assert float(hrc_from_hv(_fp_hv(15.0, find_grade("1080").nominal, "maynier1978"))) < 30.0
 
 
 @pytest.mark.parametrize("grade", ["1045", "4140", "5140", "8620", "4340", "1080"])
@@ -70,6 +152,8 @@ def test_retained_austenite_and_undissolved_carbide_are_counted_as_documented():
     hv_m = phase_hardness_hv(rate, chem)["martensite"][0]
     f = {"martensite": np.array([0.80]), "austenite": np.array([0.15]), "cementite": np.array([0.05])}
     got = hardness_hv(f, rate, chem, undissolved_cementite=0.05)[0]
+    assert got == pytest.approx(np.exp((0.80 * np.log(hv_m) + 0.15 * np.log(RETAINED_AUSTENITE_HV)) / 0.95))
+    got = hardness_hv(f, rate, chem, undissolved_cementite=0.05, rule="linear")[0]
     assert got == pytest.approx((0.80 * hv_m + 0.15 * RETAINED_AUSTENITE_HV) / 0.95)
 
 

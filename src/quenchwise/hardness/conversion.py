@@ -58,6 +58,15 @@ def hb_from_hv(hv):
     return _convert(hv, "hv", "hb")
 
 
+def hv_from_hb(hb):
+    """Vickers from Brinell (10 mm carbide ball, 3000 kgf; ASTM E140, memory); NaN outside the table.
+
+    >>> float(hv_from_hb(226.0)), float(hv_from_hb(131.0))
+    (238.0, 131.0)
+    """
+    return _convert(hb, "hb", "hv")
+
+
 def hrb_from_hv(hv):
     """Rockwell B from Vickers (ASTM E140, memory); NaN above HRB 100 or below the table.
 
