@@ -39,8 +39,12 @@ MODEL_RANGES = {
     "andrews1965": {"c": (0.0, 0.60), "mn": (0.0, 3.0), "si": (0.0, 1.5), "ni": (0.0, 5.0), "cr": (0.0, 4.5),
                     "mo": (0.0, 2.0)},
 }
+# The multi-grade correction (kinetics/multigrade.py) fades to the published laws outside its own
+# narrower fitted range, so the published model's range applies to it as well.
+MODEL_RANGES["li1998-multigrade"] = MODEL_RANGES["li1998"]
 MODEL_LABELS = {
     "li1998": "the Li et al. (1998) kinetics",
+    "li1998-multigrade": "the Li et al. (1998) kinetics",
     "kirkaldy1983": "the Kirkaldy & Venugopalan (1983) kinetics",
     "andrews1965": "the Andrews (1965) critical-temperature formulas",
 }
