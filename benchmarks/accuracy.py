@@ -250,8 +250,11 @@ def run_bars(model: str, path: Path = BARS_CSV):
     """Simulated against handbook bar readings; None if the data file is absent."""
     if not Path(path).exists():
         return None
+    from quenchwise.thermal.quenchants import load_quenchant
     from quenchwise.workflows import simulate
     presets = bar_presets(Path(path))
+    # Quench until the centre is 20 K above the bath (martensite then complete to within a few %).
+    end_c = {k: load_quenchant(v).bath_c + 20.0 for k, v in presets.items()}
     rows = _rows(Path(path))
     keys, cases = {}, []
     for r in rows:
@@ -261,6 +264,7 @@ def run_bars(model: str, path: Path = BARS_CSV):
         chem = "\n".join(f"{el} = {float(r[el])!r}" for el in ("c", "mn", "si", "ni", "cr", "mo") if float(r[el] or 0) > 0)
         text = (f'title = "{r["grade"]} {r["quenchant"]} {k[2]:g} in"\n[steel]\n{chem}\naustenitize_c = {k[3]}\n'
                 f'[part]\nshape = "bar"\ndiameter_mm = {k[2] * 25.4}\n[quench]\nmedium = "{presets[r["quenchant"]]}"\n'
+                f'end_c = {end_c[r["quenchant"]]}\n'
                 f'[transform]\nmodel = "{model}"\n')
         keys[k] = len(cases)
         cases.append(parse_case(tomllib.loads(text), text, "bar.toml"))
