@@ -48,8 +48,11 @@ def tempered_4140():
 def test_4140_oil_quenched_and_tempered_1h(tempered_4140, temper_c):
     r = tempered_4140[temper_c]
     surface = int(np.argmin(r.depth_mm))
-    # The as-quenched surface is martensitic (handbook curves start from a hardened 4140).
-    assert r.fractions["martensite"][surface] > 0.85
+    # The as-quenched surface is hardened (handbook tempering curves start from 4140 oil-quenched to
+    # about 52-57 HRC, memory). Hardness, not the martensite fraction, is checked: with the default
+    # multi-grade kinetics a 4140 surface at the rate of this still-oil curve (about 12 C/s at 700 C,
+    # near J10 of the end-quench bar) holds some bainite, as the 4140H band at J10 allows (42-56 HRC).
+    assert r.hrc[surface] >= 50.0
     assert float(r.hrc_tempered[surface]) == pytest.approx(HANDBOOK_4140[temper_c], abs=4.0)
 
 
