@@ -127,6 +127,7 @@ class GradeScore:
     j50_band: float = math.nan
     j50_martensite: float = math.nan
     rate_j50: float = math.nan
+    rate_j50_martensite: float = math.nan
 
     @property
     def n(self):
@@ -164,6 +165,8 @@ def score_grade(grade: str, result, band, carbon: float) -> GradeScore:
     s.j50_martensite = _crossing(fine, mart, 0.5)
     if math.isfinite(s.j50_sim):
         s.rate_j50 = float(result.read(result.rate_cells, [s.j50_sim * SIXTEENTH_M * 1000.0])[0])
+    if math.isfinite(s.j50_martensite):
+        s.rate_j50_martensite = float(result.read(result.rate_cells, [s.j50_martensite * SIXTEENTH_M * 1000.0])[0])
     return s
 
 
@@ -216,6 +219,18 @@ def endquench_markdown(scores: dict) -> list[str]:
     out.append(f"Done-when figures: points within the band +/-2 HRC: **{t['within_2_pct']:.1f} %** (target >= 95 %); "
                f"grades with more than 2 points outside +/-4 HRC: **{', '.join(t['grades_over_2_outside_4']) or 'none'}** "
                "(target none).")
+    return out
+
+
+def compare_markdown(before: dict, after: dict, name_before: str, name_after: str) -> list[str]:
+    out = [f"| grade | within 2 HRC: {name_before} | {name_after} | outside 4 HRC: {name_before} | {name_after} |",
+           "| --- | ---: | ---: | ---: | ---: |"]
+    for g in after:
+        b, s = before[g], after[g]
+        out.append(f"| {g} | {b.count(2)} / {b.n} | {s.count(2)} / {s.n} | {b.outside(4)} | {s.outside(4)} |")
+    tb, ta = totals(before), totals(after)
+    out.append(f"| **all** | {tb['within_2_pct']:.1f} % | {ta['within_2_pct']:.1f} % | "
+               f"{sum(x.outside(4) for x in before.values())} | {sum(x.outside(4) for x in after.values())} |")
     return out
 
 
@@ -369,24 +384,32 @@ def run_di(model: str, scores: dict, results: dict) -> list[dict]:
     out = []
     for g, d in zip(names, sim):
         s = scores[g]
-        implied = math.nan
-        if math.isfinite(s.rate_j50):
-            implied = float(np.exp(np.interp(np.log(s.rate_j50), np.log(rates[::-1]), np.log(diam[::-1])))) / 25.4
+        def implied(rate):
+            if not math.isfinite(rate):
+                return math.nan
+            return float(np.exp(np.interp(np.log(rate), np.log(rates[::-1]), np.log(diam[::-1])))) / 25.4
         out.append({"grade": g, "a255_in": a255_ideal_diameter(results[g].case.composition).inches,
-                    "sim_in": d.inches, "implied_in": implied})
+                    "sim_in": d.inches, "implied_in": implied(s.rate_j50),
+                    "implied_m_in": implied(s.rate_j50_martensite)})
     return out
 
 
 def di_markdown(rows) -> list[str]:
-    out = ["| grade | A255 DI in | simulated DI in | end-quench implied DI in | sim / A255 | sim / implied |",
-           "| --- | ---: | ---: | ---: | ---: | ---: |"]
+    out = ["Implied DI: the bar whose centre, under an infinite quench (pure conduction from 845 C), cools at "
+           "700 C as fast as the end-quench position of 50 % martensite hardness (Hodge & Orehoski), or of "
+           "50 % martensite by fraction (the simulated DI's own criterion).", "",
+           "| grade | A255 DI in | simulated DI in | implied DI in (hardness) | implied DI in (fraction) | "
+           "sim / A255 | sim / implied (hardness) |", "| --- | ---: | ---: | ---: | ---: | ---: | ---: |"]
     for r in rows:
         out.append(f"| {r['grade']} | {r['a255_in']:.2f} | {r['sim_in']:.2f} | {_f(r['implied_in'], '{:.2f}')} | "
+                   f"{_f(r['implied_m_in'], '{:.2f}')} | "
                    f"{r['sim_in'] / r['a255_in']:.2f} | {_f(r['sim_in'] / r['implied_in'], '{:.2f}')} |")
     a = np.array([r["sim_in"] / r["a255_in"] for r in rows])
     b = np.array([r["sim_in"] / r["implied_in"] for r in rows if math.isfinite(r["implied_in"])])
-    out.append(f"\nGeometric mean sim / A255 **{np.exp(np.mean(np.log(a))):.2f}**, sim / implied "
-               f"**{np.exp(np.mean(np.log(b))):.2f}** ({len(b)} grades with a J50 on the bar).")
+    m = np.array([r["sim_in"] / r["implied_m_in"] for r in rows if math.isfinite(r["implied_m_in"])])
+    out.append(f"\nGeometric mean sim / A255 **{np.exp(np.mean(np.log(a))):.2f}**, sim / implied (hardness) "
+               f"**{np.exp(np.mean(np.log(b))):.2f}** ({len(b)} grades with a J50 on the bar), sim / implied "
+               f"(fraction) **{np.exp(np.mean(np.log(m))):.2f}** ({len(m)} grades).")
     return out
 
 
@@ -396,6 +419,8 @@ def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--model", default=DEFAULT_MODEL)
     ap.add_argument("--sections", default="endquench,cooling,bars,facts,di")
+    ap.add_argument("--baseline", default="li1998",
+                    help="model scored beside the chosen one, grade by grade ('' for none)")
     ap.add_argument("--quick", action="store_true", help="the fast subset of grades with coarse steps")
     ap.add_argument("--bars", default=str(BARS_CSV), help="mass-effect bar readings CSV")
     ap.add_argument("--out", default=str(Path(__file__).resolve().parent / "accuracy.md"))
@@ -411,6 +436,10 @@ def main(argv=None) -> int:
         scores, results = run_endquench(a.model, grades, COARSE if a.quick else DEFAULT_SETTINGS)
         if "endquench" in sections:
             md += ["## (a) End-quench against SAE J1268 H-bands", ""] + endquench_markdown(scores) + [""]
+            if a.baseline and a.baseline != a.model:
+                base, _ = run_endquench(a.baseline, grades, COARSE if a.quick else DEFAULT_SETTINGS)
+                md += [f"Grade by grade against `{a.baseline}`:", ""] + compare_markdown(base, scores, a.baseline,
+                                                                                           a.model) + [""]
         if "cooling" in sections:
             md += ["## End-quench specimen: cooling rate at 705 C", ""] + cooling_section(results) + [""]
     if "bars" in sections:
