@@ -174,13 +174,14 @@ def _summary_text(summary: dict, files: list[Path]) -> str:
         + (f"; bore: {s['quench']['inner']}" if s["quench"]["inner"] else "")
         + f"; until the hottest point is below {s['quench']['end_c']:g} C ({s['time_to_end_s']:.1f} s, {s['steps']} steps)",
         "",
-        f"{'location':<20}{'depth mm':>9}{'HRC':>7}{'HV':>7}{'martensite %':>14}{'bainite %':>11}{'ferr+pearl %':>14}{'ret. aust %':>13}",
+        f"{'location':<20}{'depth mm':>9}{'HRC':>7}{'HV':>7}{'martensite %':>14}{'bainite %':>11}{'ferr+pearl %':>14}{'ret. aust %':>13}{'Jominy mm':>11}",
     ]
     for p in s["points"]:
         hrc = "-" if p["hrc"] is None else f"{p['hrc']:.1f}"
         hv = "-" if p["hv"] is None else f"{p['hv']:.0f}"
         lines.append(f"{p['location']:<20}{p['depth_mm']:>9.2f}{hrc:>7}{hv:>7}{p['martensite_pct']:>14.1f}"
-                     f"{p['bainite_pct']:>11.1f}{p['ferrite_pearlite_pct']:>14.1f}{p['retained_austenite_pct']:>13.1f}")
+                     f"{p['bainite_pct']:>11.1f}{p['ferrite_pearlite_pct']:>14.1f}{p['retained_austenite_pct']:>13.1f}"
+                     f"{_fmt(p.get('jominy_distance_mm'), '{:.1f}'):>11}")
     if "temper" in s:
         t = s["temper"]
         lines.append(f"temper  {t['hours']:g} h at {t['temperature_c']:g} C: " + ", ".join(

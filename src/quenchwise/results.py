@@ -18,6 +18,7 @@ import h5py
 import numpy as np
 
 from . import __version__
+from .hardness.jominy_equivalent import equivalent_jominy_distance_mm
 from .hardness.phases import HARDNESS_METHOD
 from .kinetics import critical_temperature_note
 from .steel import AusteniteState
@@ -50,6 +51,12 @@ class Result:
     def depth_mm(self) -> np.ndarray:
         """Node depth below the outer quenched surface [mm]."""
         return (self.history.section.outer_m - self.history.radius_m) * 1000.0
+
+    @property
+    def jominy_distance_mm(self) -> np.ndarray:
+        """Equivalent end-quench distance of each node [mm]: the Jominy distance with the same
+        cooling rate at 700 C (hardness.jominy_equivalent); NaN beyond the published curve."""
+        return equivalent_jominy_distance_mm(self.cooling_rate_700_c_s)
 
     @property
     def fraction_names(self) -> tuple[str, ...]:
@@ -91,6 +98,7 @@ class Result:
                 "ferrite_pearlite_pct": _round(100.0 * self.at(self.fractions["ferrite"] + self.fractions["pearlite"], r), 1),
                 "retained_austenite_pct": _round(100.0 * self.at(self.fractions["austenite"], r), 1),
                 "cooling_rate_700_c_s": _round(self.at(self.cooling_rate_700_c_s, r), 3),
+                "jominy_distance_mm": _round(float(equivalent_jominy_distance_mm(self.at(self.cooling_rate_700_c_s, r))), 1),
             })
             rows[-1].update(_other_scales(hv, hrc))
             if self.hv_tempered is not None:
@@ -183,14 +191,15 @@ def profile_csv_text(result: Result) -> str:
     out = io.StringIO()
     w = csv.writer(out, lineterminator="\n")
     tempered = result.hv_tempered is not None
-    w.writerow(["depth_mm", "position_mm", *names, "hv", "hrc", "cooling_rate_700_c_s",
+    w.writerow(["depth_mm", "position_mm", *names, "hv", "hrc", "cooling_rate_700_c_s", "jominy_distance_mm",
                 *(("hv_tempered", "hrc_tempered") if tempered else ())])
     order = np.argsort(result.depth_mm, kind="stable")
+    jominy = result.jominy_distance_mm
     for j in order:
         w.writerow([f"{result.depth_mm[j]:.4f}", f"{result.position_mm[j]:.4f}",
                     *(f"{result.fractions[n][j]:.5f}" for n in names),
                     _fmt(result.hv[j], "{:.1f}"), _fmt(result.hrc[j], "{:.1f}"),
-                    _fmt(result.cooling_rate_700_c_s[j], "{:.5g}"),
+                    _fmt(result.cooling_rate_700_c_s[j], "{:.5g}"), _fmt(jominy[j], "{:.2f}"),
                     *((_fmt(result.hv_tempered[j], "{:.1f}"), _fmt(result.hrc_tempered[j], "{:.1f}")) if tempered else ())])
     return out.getvalue()
 
@@ -220,6 +229,7 @@ def write_result_h5(result: Result, path: Path) -> None:
                 f.create_dataset("hv_tempered", data=result.hv_tempered)
                 f.create_dataset("hrc_tempered", data=result.hrc_tempered)
             f.create_dataset("cooling_rate_700_c_s", data=result.cooling_rate_700_c_s)
+            f.create_dataset("jominy_distance_mm", data=result.jominy_distance_mm)
             f.attrs["case"] = result.case.source_text
             f.attrs["case_sha256"] = result.case.source_sha256
             f.attrs["program"] = "quenchwise"

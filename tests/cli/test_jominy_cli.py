@@ -99,4 +99,4 @@ hours = 2
     assert code == 0, stderr
     assert "temper  2 h at 425 C: surface" in stdout and "ASTM A255" in stdout
     header = (tmp_path / "o" / "profile.csv").read_text().splitlines()[0]
-    assert header.endswith("cooling_rate_700_c_s,hv_tempered,hrc_tempered")
+    assert header.endswith("cooling_rate_700_c_s,jominy_distance_mm,hv_tempered,hrc_tempered")

@@ -9,7 +9,7 @@ import h5py
 import numpy as np
 
 CONTRACT_COLUMNS = ["depth_mm", "position_mm", "ferrite", "pearlite", "bainite", "martensite", "austenite",
-                    "hv", "hrc", "cooling_rate_700_c_s"]
+                    "hv", "hrc", "cooling_rate_700_c_s", "jominy_distance_mm"]
 
 
 def test_run_writes_the_contract_files(cli, cases_dir, tmp_path):

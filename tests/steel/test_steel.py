@@ -54,7 +54,9 @@ def test_every_model_range_is_an_ordered_interval_inside_the_hard_limits():
 
 # -- critical temperatures --------------------------------------------------------------------------
 def test_default_ms_is_the_andrews_product_formula_and_tracks_the_linear_one_at_medium_carbon():
-    assert martensite_start is andrews_ms_product
+    # Up to 0.6 %C the default Ms is Andrews' product formula unchanged (ms_andrews_joined).
+    c = np.linspace(0.0, 0.6, 13)
+    np.testing.assert_allclose(martensite_start(c, 0.8, 0.5, 0.9, 0.2), andrews_ms_product(c, 0.8, 0.5, 0.9, 0.2))
     for c in (0.2, 0.3, 0.45):
         assert abs(float(andrews_ms_product(c, mn=0.8)) - float(andrews_ms(c, mn=0.8))) < 15.0
 

@@ -18,8 +18,8 @@ Method
    value: they soften no further than martensite of the same temper; common practice, no
    source); retained austenite is counted at phases.RETAINED_AUSTENITE_HV below a 1-h equivalent
    of 250 C and as tempered martensite above it (it decomposes in the second stage of tempering,
-   about 200-300 C; common practice, no source); undissolved carbide is left out, as in the
-   as-quenched mixture.
+   about 200-300 C; common practice, no source); undissolved carbide is left out, and the
+   phases are mixed by the same rule as the as-quenched hardness (phases.combine_phases_hv).
 
 Validity: low-alloy steels of about 0.1-0.6 %C (the paper's range, memory) tempered between about
 205 and 650 C for 1-h equivalents; outside that the result is held at the nearest table row and
@@ -38,7 +38,7 @@ from importlib import resources
 
 import numpy as np
 
-from .phases import RETAINED_AUSTENITE_HV, phase_hardness_hv
+from .phases import RETAINED_AUSTENITE_HV, combine_phases_hv, phase_hardness_hv
 
 #: Hollomon-Jaffe constant used when none is given (hours): "about 20" for low-alloy steels.
 DEFAULT_HJ_CONSTANT = 20.0
@@ -156,11 +156,8 @@ def tempered_hardness_hv(fractions: dict, rate_700_c_s, chem: dict, temperature_
                      "hardness held at the table's last row")
     phases = phase_hardness_hv(rate_700_c_s, chem)
     hv_tm = tempered_martensite_hv(t1, phases["martensite"], chem)
-    zero = np.zeros_like(phases["martensite"])
-    get = lambda name: fractions.get(name, zero)  # noqa: E731
-    diffusional = get("ferrite") + get("pearlite") + np.maximum(get("cementite") - undissolved_cementite, 0.0)
     ra_hv = hv_tm if t1 >= RETAINED_AUSTENITE_DECOMPOSES_C else np.full_like(hv_tm, RETAINED_AUSTENITE_HV)
-    total = diffusional + get("bainite") + get("martensite") + get("austenite")
-    hv = (get("martensite") * hv_tm + get("bainite") * np.minimum(phases["bainite"], hv_tm)
-          + diffusional * np.minimum(phases["ferrite_pearlite"], hv_tm) + get("austenite") * ra_hv)
-    return hv / np.where(total > 0, total, 1.0), notes
+    # Mixed by the same rule as the as-quenched hardness, so a temper never reads harder than it.
+    hv = combine_phases_hv(fractions, hv_tm, np.minimum(phases["bainite"], hv_tm),
+                           np.minimum(phases["ferrite_pearlite"], hv_tm), ra_hv, undissolved_cementite)
+    return hv, notes

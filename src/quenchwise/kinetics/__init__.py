@@ -26,7 +26,7 @@ def critical_temperature_note(model: str) -> str:
     """The critical-temperature methods a run with this kinetics model uses, for summaries.
 
     >>> critical_temperature_note("kirkaldy1983")
-    'Andrews (1965) Ae1/Ae3; Andrews (1965) product Ms; straight Fe-C Acm (no alloy correction); Kirkaldy & Venugopalan (1983) Bs'
+    'Andrews (1965) Ae1/Ae3; Andrews (1965) product Ms (above 0.6 %C: van Bohemen (2012) carbon term); straight Fe-C Acm (no alloy correction); Kirkaldy & Venugopalan (1983) Bs'
     """
     parts = [AE_METHOD, MS_METHOD, ACM_METHOD]
     if model in MODELS:
