@@ -470,7 +470,7 @@ def _jominy_text(summary: dict, files: list[Path]) -> str:
     lines = [f"quenchwise {__version__}  |  {s['title'] or 'end-quench test'}",
              f"steel   {steel['grade'] or 'custom'} ({chem} wt%), grain size {steel['grain_size']:g}, "
              f"austenitized at {steel['austenitize_c']:g} C",
-             f"test    {s['test']['specimen']}; {s['test']['model']} model, jet h {s['test']['jet_htc_w_m2k']:g} W/m2K; "
+             f"test    {s['test']['specimen']}; {s['test']['model']} model, jet peak h {s['test']['jet_htc_w_m2k']:g} W/m2K; "
              f"{s['test']['time_s']:g} s, {s['test']['steps']} steps",
              f"DI      ASTM A255 {di['a255']['in']:.2f} in ({di['a255']['mm']:.0f} mm)"
              + (f"; simulated {di['physics']['in']:.2f} in ({di['physics']['mm']:.0f} mm), ratio "

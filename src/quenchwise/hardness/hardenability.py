@@ -13,6 +13,8 @@ times one multiplying factor per alloying element (values recalled from the stan
     Si: 1 + 0.7 Si;  Ni: 1 + 0.3636 Ni (Ni <= 1.5);  Cr: 1 + 2.16 Cr;  Mo: 1 + 3.0 Mo;
     Cu: 1 + 0.365 Cu;  V: 1 + 1.73 V                  (all wt%)
 
+Boron (b > 0): times the A255 boron factor of steel/boron.py (carbon and alloy factor, memory).
+
 Outside the ranges above the same expressions are used and the result says so (``notes``).
 Reference: ASTM A255, Standard Test Methods for Determining Hardenability of Steel, the
 calculation of DI from composition (memory).
@@ -23,6 +25,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+
+from ..steel.boron import a255_boron_factor
 
 METRES_PER_INCH = 0.0254
 #: Ranges of the factors (wt%) as the standard states them (memory); beyond them: extrapolated.
@@ -88,11 +92,18 @@ def a255_ideal_diameter(composition) -> IdealDiameter:
     >>> from quenchwise.steel import Composition
     >>> round(a255_ideal_diameter(Composition(c=0.405, mn=0.875, si=0.25, cr=0.95, mo=0.2)).inches, 2)
     4.83
+    >>> round(a255_ideal_diameter(Composition(c=0.35, mn=0.95, si=0.25, b=0.002)).inches, 2)   # 15B35H-type
+    2.07
     """
     e = {k: float(getattr(composition, k, 0.0)) for k in ("c", "mn", "si", "ni", "cr", "mo", "cu", "v")}
     di = float(a255_base_di_in(e["c"]))
+    alloy = 1.0
     for name, f in a255_factors(**{k: v for k, v in e.items() if k != "c"}).items():
-        di *= float(f)
+        alloy *= float(f)
+    di *= alloy
+    b = float(getattr(composition, "b", 0.0))
+    if b > 0:
+        di *= float(a255_boron_factor(e["c"], b, alloy_factor=alloy / float(a255_factors(v=e["v"])["v"])))
     notes = [f"{k} = {e[k]:g} wt% is outside the A255 factor range {lo:g}-{hi:g}: extrapolated"
              for k, (lo, hi) in A255_RANGES.items() if not lo <= e[k] <= hi]
     if float(getattr(composition, "w", 0.0)) > 0:

@@ -13,11 +13,13 @@ from ..steel.critical import ACM_METHOD, AE_METHOD, MS_METHOD
 from .calibrated import Li1998A255
 from .kirkaldy1983 import Kirkaldy1983
 from .li1998 import Li1998
+from .multigrade import Li1998Multigrade
 from .martensite import koistinen_marburger, van_bohemen_sietsma_alpha
 from .transformation import PRODUCTS, HistoryRun, PhaseStepper, SteelNodes, follow_history
 
 MODELS = {"li1998": Li1998, "kirkaldy1983": Kirkaldy1983,
-          "li1998-a255": Li1998A255}  # calibrated variant, selectable (kinetics/calibrated.py)
+          "li1998-a255": Li1998A255,   # calibrated variant, selectable (kinetics/calibrated.py)
+          "li1998-multigrade": Li1998Multigrade}   # multi-grade correction (kinetics/multigrade.py)
 
 
 def critical_temperature_note(model: str) -> str:
@@ -32,5 +34,5 @@ def critical_temperature_note(model: str) -> str:
     return "; ".join(parts)
 
 
-__all__ = ["MODELS", "PRODUCTS", "HistoryRun", "Kirkaldy1983", "Li1998", "Li1998A255", "PhaseStepper", "SteelNodes",
+__all__ = ["MODELS", "PRODUCTS", "HistoryRun", "Kirkaldy1983", "Li1998", "Li1998A255", "Li1998Multigrade", "PhaseStepper", "SteelNodes",
            "critical_temperature_note", "follow_history", "koistinen_marburger", "van_bohemen_sietsma_alpha"]

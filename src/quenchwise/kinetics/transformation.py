@@ -103,7 +103,7 @@ class SteelNodes:
             return np.repeat(np.asarray(values, dtype=float), counts)
 
         chem = {k: rep([getattr(s.austenite_composition, k) for s in states])
-                for k in ("c", "mn", "si", "ni", "cr", "mo", "cu", "v", "w")}
+                for k in ("c", "mn", "si", "ni", "cr", "mo", "cu", "v", "w", "b")}
         carbon0 = chem["c"]
         hyper = carbon0 > EUTECTOID_C_WT + 1e-12
         ae1 = rep([s.ae1 for s in states])

@@ -8,10 +8,14 @@ from dataclasses import dataclass, fields, replace
 from ..errors import InputError
 
 #: Elements the models use, in wt%.
-ELEMENTS = ("c", "mn", "si", "ni", "cr", "mo", "cu", "v", "w")
+ELEMENTS = ("c", "mn", "si", "ni", "cr", "mo", "cu", "v", "w", "b")
 
 #: Largest value accepted per element (wt%): beyond it the steel is not one these models address.
-HARD_LIMIT = {"c": 2.1, "mn": 3.0, "si": 3.0, "ni": 10.0, "cr": 12.0, "mo": 2.0, "cu": 2.0, "v": 1.0, "w": 3.0}
+HARD_LIMIT = {"c": 2.1, "mn": 3.0, "si": 3.0, "ni": 10.0, "cr": 12.0, "mo": 2.0, "cu": 2.0, "v": 1.0, "w": 3.0,
+              # Boron: boron-treated steels carry 0.0005-0.003 wt% (SAE J1268 / J404 B grades, memory);
+              # above about 0.01 wt% boron embrittles the steel (ASM Handbook Vol. 4D, heat treating
+              # of boron steels, memory), so larger values are refused as a likely unit slip (ppm).
+              "b": 0.01}
 
 #: Composition range (wt%) of the steels each correlation was fitted on, per element. Outside it a
 #: result carries a warning; it is not an error. All limits are recalled (memory) and approximate:
@@ -27,14 +31,20 @@ HARD_LIMIT = {"c": 2.1, "mn": 3.0, "si": 3.0, "ni": 10.0, "cr": 12.0, "mo": 2.0,
 #:   reach beyond our hard limits for Mn and Mo; they are capped at those.
 MODEL_RANGES = {
     "li1998": {"c": (0.10, 1.10), "mn": (0.20, 2.00), "si": (0.0, 1.00), "ni": (0.0, 3.50), "cr": (0.0, 2.00),
-               "mo": (0.0, 0.70), "cu": (0.0, 0.50), "v": (0.0, 0.20), "w": (0.0, 0.50)},
+               "mo": (0.0, 0.70), "cu": (0.0, 0.50), "v": (0.0, 0.20), "w": (0.0, 0.50),
+               "b": (0.0, 0.005)},
     "kirkaldy1983": {"c": (0.10, 1.10), "mn": (0.20, 2.00), "si": (0.0, 1.00), "ni": (0.0, 3.50),
-                     "cr": (0.0, 2.00), "mo": (0.0, 0.70), "cu": (0.0, 0.50), "v": (0.0, 0.20), "w": (0.0, 0.50)},
+                     "cr": (0.0, 2.00), "mo": (0.0, 0.70), "cu": (0.0, 0.50), "v": (0.0, 0.20), "w": (0.0, 0.50),
+                     "b": (0.0, 0.005)},
     "andrews1965": {"c": (0.0, 0.60), "mn": (0.0, 3.0), "si": (0.0, 1.5), "ni": (0.0, 5.0), "cr": (0.0, 4.5),
                     "mo": (0.0, 2.0)},
 }
+# The multi-grade correction (kinetics/multigrade.py) fades to the published laws outside its own
+# narrower fitted range, so the published model's range applies to it as well.
+MODEL_RANGES["li1998-multigrade"] = MODEL_RANGES["li1998"]
 MODEL_LABELS = {
     "li1998": "the Li et al. (1998) kinetics",
+    "li1998-multigrade": "the Li et al. (1998) kinetics",
     "kirkaldy1983": "the Kirkaldy & Venugopalan (1983) kinetics",
     "andrews1965": "the Andrews (1965) critical-temperature formulas",
 }
@@ -57,6 +67,7 @@ class Composition:
     cu: float = 0.0
     v: float = 0.0
     w: float = 0.0
+    b: float = 0.0      # boron; its effect on the kinetics: kinetics/boron.py
 
     def __post_init__(self) -> None:
         total = 0.0

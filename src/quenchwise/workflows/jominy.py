@@ -137,6 +137,8 @@ class JominyResult:
                      "model": "1-D axial" if self.settings.radial_cells == 1 else
                               f"2-D (r, z), {self.settings.radial_cells} radial cells",
                      "jet_htc_w_m2k": float(self.history.extra.get("jet_htc_w_m2k", np.nan)),
+                     "jet": "boiling curve of the water jet (thermal/endquench.py JET_BOILING_CURVE); "
+                            "jet_htc_w_m2k is its peak",
                      "reading_depth_mm": 0.4, "kinetics": c.model, "martensite": c.martensite,
                      "hardness": "Maynier, Jungmann & Dollet (1978); ASTM E140 conversion",
                      "time_s": round(float(self.history.time_s[-1]), 1), "steps": self.history.steps},
@@ -197,7 +199,7 @@ def jominy(cases: list[Case], settings: EndQuenchSettings = DEFAULT_SETTINGS, ph
         rate = stepper.cooling_rate_700()
         fr = stepper.fractions()
         for j, (i, h) in enumerate(zip(members, histories)):
-            h.extra["jet_htc_w_m2k"] = float(jet.htc_w_m2k[0])
+            h.extra["jet_htc_w_m2k"] = float(np.max(jet.htc_w_m2k))    # peak of the boiling curve
             sl = slice(solver.starts[j], solver.starts[j] + solver.cells_per_bar)
             fractions = {k: v[sl].copy() for k, v in fr.items()}
             state = states[i]

@@ -1,0 +1,131 @@
+"""Li et al. (1998) kinetics with composition-dependent correction factors fitted on many grades
+("li1998-multigrade").
+
+What: each product's time constant of the published laws (li1998.py) is multiplied by a factor
+that depends on the austenite chemistry,
+
+    K_p = m_p(chem) K_p,Li,    ln m_p = sum_k theta_p,k x_k,
+    x = (1, C - 0.4, Mn - 0.8, Cr - 0.5, Ni - 0.5, Mo - 0.2)          (wt%, austenite chemistry)
+
+for p = ferrite, pearlite (also used for proeutectoid cementite, which borrows the pearlite law),
+bainite. The correction is never extrapolated: each x_k (k >= 1) is clipped to the range of the
+grades the coefficients were fitted on (``fit_range`` in the coefficient file), and outside that
+range the whole correction fades linearly to none (ln m_p x w, w falling from 1 on the range's
+edge to 0 at TAPER_WT beyond it, the farthest element deciding): a chemistry far from the fitted
+grades (a eutectoid or bearing steel, a 3.5 %Ni steel) gets the published laws. Nothing else changes (Bs, Ms, S(X), grain size
+and undercooling dependence, the boron delay of li1998.py).
+
+Fit (benchmarks/calibrate_kinetics.py, which writes multigrade_coefficients.toml beside this module;
+method, data and scores also in the file's header): the SAE J1268 H-bands (memory) of 16 grades,
+376 band points (1045H, 1541H, 1340H, 4130H, 4140H, 4150H, 4340H, 5140H, 5160H, 6150H, 8620H, 8640H,
+4320H, 4620H, 15B35H, 86B45H: middle of each chemistry range, A255 test temperature, grain size 7);
+least squares on the HRC outside each band plus 0.3 x the distance from the band middle, ridge 0.3
+on the coefficients. Range: austenite C 0.20-0.60, Mn 0.50-1.75, Cr 0-0.98, Ni 0-1.78, Mo 0-0.25 wt%
+(Si about 0.25, V up to 0.2, B 0-0.003 in the data). Score, share of band points within +/-2 HRC:
+published coefficients 93.6 %, training 99.5 %, leave-one-grade-out 98.7 %; with full simulations
+(benchmarks/accuracy.py) 98.9 %, no grade with more than 2 points outside +/-4 HRC. The published coefficients stay selectable and unchanged as "li1998".
+This module holds only the data and pure functions; it imports nothing above kinetics/.
+"""
+
+from __future__ import annotations
+
+import tomllib
+from dataclasses import dataclass
+from functools import lru_cache
+from importlib import resources
+
+import numpy as np
+
+from .li1998 import Li1998
+
+PRODUCTS = ("ferrite", "pearlite", "bainite")
+#: Terms of the correction: name, element, centre [wt%] (None: the constant term).
+TERMS = (("1", None, 0.0), ("c", "c", 0.4), ("mn", "mn", 0.8), ("cr", "cr", 0.5), ("ni", "ni", 0.5),
+         ("mo", "mo", 0.2))
+COEFFICIENT_FILE = "multigrade_coefficients.toml"
+#: Distance beyond the fitted range over which the correction fades to none [wt%].
+TAPER_WT = {"c": 0.2, "mn": 0.5, "cr": 0.5, "ni": 1.0, "mo": 0.2}
+
+
+@lru_cache(maxsize=1)
+def load_coefficients() -> dict:
+    """The fitted coefficients: {"theta": {product: [6 floats]}, "fit_range": {element: [lo, hi]}, ...}."""
+    text = (resources.files("quenchwise.kinetics") / COEFFICIENT_FILE).read_text("utf-8")
+    return tomllib.loads(text)
+
+
+def correction_terms(chem: dict, fit_range: dict) -> np.ndarray:
+    """The regressors x_k of the correction, (len(TERMS), n) for element arrays in wt%, each
+    clipped to fit_range (module docstring).
+
+    >>> x = correction_terms({"c": [0.4, 0.9], "mn": [0.8, 0.8], "cr": [0.0, 0.0], "ni": [0.0, 0.0],
+    ...                       "mo": [0.0, 0.0]}, {"c": [0.2, 0.6]})
+    >>> x[:2].round(2).tolist()
+    [[1.0, 1.0], [0.0, 0.2]]
+    """
+    n = np.broadcast(*[np.asarray(chem[e], dtype=float) for _, e, _ in TERMS if e]).shape
+    rows = []
+    for _, element, centre in TERMS:
+        if element is None:
+            rows.append(np.ones(n))
+            continue
+        v = np.asarray(chem[element], dtype=float) + np.zeros(n)
+        lo, hi = fit_range.get(element, (-np.inf, np.inf))
+        rows.append(np.clip(v, lo, hi) - centre)
+    return np.array(rows)
+
+
+def range_weight(chem: dict, fit_range: dict):
+    """Weight w of the correction [0-1]: 1 inside fit_range, falling linearly to 0 at TAPER_WT
+    beyond it (the element farthest out decides).
+
+    >>> [round(float(range_weight({"c": c}, {"c": [0.2, 0.6]})), 3) for c in (0.5, 0.7, 0.9)]
+    [1.0, 0.5, 0.0]
+    """
+    w = 1.0
+    for element, (lo, hi) in fit_range.items():
+        if element not in chem or element not in TAPER_WT:
+            continue
+        v = np.asarray(chem[element], dtype=float)
+        out = np.maximum(np.maximum(lo - v, v - hi), 0.0)
+        w = np.minimum(w, np.clip(1.0 - out / TAPER_WT[element], 0.0, 1.0))
+    return w
+
+
+def correction_multipliers(chem: dict, theta: dict, fit_range: dict) -> dict:
+    """m_p = exp(w theta_p . x) per product (module docstring); theta: {product: 6 coefficients}.
+
+    >>> chem = {"c": 0.4, "mn": 0.8, "cr": 0.5, "ni": 0.5, "mo": 0.2}
+    >>> m = correction_multipliers(chem, {"ferrite": [0.5, 1, 0, 0, 0, 0], "pearlite": [0] * 6,
+    ...                                   "bainite": [0] * 6}, {})
+    >>> round(float(m["ferrite"]), 4), float(m["pearlite"])
+    (1.6487, 1.0)
+    """
+    x = correction_terms(chem, fit_range)
+    w = range_weight(chem, fit_range)
+    return {p: np.exp(w * np.tensordot(np.asarray(theta[p], dtype=float), x, axes=1)) for p in PRODUCTS}
+
+
+@dataclass(frozen=True)
+class Li1998Multigrade(Li1998):
+    """Li et al. (1998) with the fitted multi-grade correction of this module on every K.
+
+    theta: {product: 6 coefficients} (None: the fitted file's); fit_range likewise. The fitting
+    script passes trial coefficients here; nothing touches the MODELS registry.
+    """
+
+    name: str = "li1998-multigrade"
+    theta: tuple | None = None          # ((product, (6 floats)), ...) to stay hashable
+    fit_range: tuple | None = None      # ((element, (lo, hi)), ...)
+
+    def _theta(self) -> tuple[dict, dict]:
+        if self.theta is None or self.fit_range is None:
+            data = load_coefficients()
+        theta = dict(self.theta) if self.theta is not None else data["theta"]
+        rng = dict(self.fit_range) if self.fit_range is not None else data["fit_range"]
+        return theta, rng
+
+    def factors(self, chem: dict) -> dict:
+        theta, rng = self._theta()
+        m = correction_multipliers(chem, theta, rng)
+        return {k: v * m[k] for k, v in super().factors(chem).items()}
