@@ -12,11 +12,7 @@ def __getattr__(name: str):
     # line installs its signal handlers right after it).
     if name != "__version__":
         raise AttributeError(name)
-    from importlib.metadata import PackageNotFoundError, version
+    from .version import __version__
 
-    try:
-        value = version("quenchwise")
-    except PackageNotFoundError:  # running from a source tree that was not installed
-        value = "0.0.0+unknown"
-    globals()["__version__"] = value
-    return value
+    globals()["__version__"] = __version__
+    return __version__

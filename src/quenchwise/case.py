@@ -20,7 +20,7 @@ from .steel.austenite import austenitize
 from .steel.grades import find_grade
 from .thermal.geometry import Section
 from .thermal.quenchants import Quenchant, htc_from_grossmann, load_quenchant
-from .thermal.solver import SolverSettings
+from .thermal.settings import SolverSettings
 from .units import US_KEYS, si_keys
 
 SECTIONS = {

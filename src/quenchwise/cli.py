@@ -18,7 +18,7 @@ from typing import Optional
 
 import typer
 
-from . import __version__
+from .version import __version__
 from . import publish
 from .cautions import CAUTION
 from .errors import InputError
@@ -56,7 +56,7 @@ def _guard():
     bad input -> 2; solver failure -> 1; SIGINT -> 130, SIGTERM -> 143 (saying what was being done;
     results are staged, so nothing is half-written and earlier results stay); anything unexpected
     -> 1 with the exception named (QUENCHWISE_DEBUG=1 shows the traceback)."""
-    from .thermal.solver import SolverError
+    from .errors import SolverError
 
     previous = publish.install_handlers()
     _activity("starting")

@@ -17,7 +17,7 @@ import matplotlib.pyplot as plt  # noqa: E402
 import numpy as np  # noqa: E402
 from matplotlib.patches import Circle, Rectangle, Wedge  # noqa: E402
 
-from . import __version__  # noqa: E402
+from .version import __version__  # noqa: E402
 from .cautions import CAUTION  # noqa: E402
 from .hardness import hrc_from_hv, hv_from_hrc  # noqa: E402
 from .workflows.requirement import (  # noqa: E402

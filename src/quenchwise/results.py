@@ -17,7 +17,7 @@ from pathlib import Path
 import h5py
 import numpy as np
 
-from . import __version__
+from .version import __version__
 from .hardness.jominy_equivalent import equivalent_jominy_distance_mm
 from .hardness.phases import HARDNESS_METHOD
 from .kinetics import critical_temperature_note

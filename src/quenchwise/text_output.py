@@ -6,7 +6,7 @@ follow a units.Units (SI by default; ``--units us`` gives inches and Fahrenheit)
 
 from __future__ import annotations
 
-from . import __version__
+from .version import __version__
 from .cautions import CAUTION
 from .units import Units
 
