@@ -213,23 +213,41 @@ def write_profile_csv(result: Result, path: Path) -> None:
     _atomic_write(Path(path), lambda p: p.write_text(text, "utf-8"))
 
 
+#: Units of the result.h5 datasets (the `units` attribute of each; "1" for fractions and counts).
+H5_UNITS = {"time": "s", "node": "1", "time_s": "s", "position_mm": "mm", "depth_mm": "mm", "temperature_c": "degC",
+            "hv": "HV", "hrc": "HRC", "hv_tempered": "HV", "hrc_tempered": "HRC", "cooling_rate_700_c_s": "K/s",
+            "jominy_distance_mm": "mm", **{name: "1" for name in FRACTIONS + ("cementite",)}}
+
+
 def write_result_h5(result: Result, path: Path) -> None:
-    """result.h5 with the datasets of the contract; case text and program version as attributes."""
+    """result.h5 with the datasets of the contract; case text and program version as attributes.
+
+    Self-describing: every dataset has a `units` attribute (H5_UNITS) and a `long_name`, and two
+    HDF5 dimension scales, `time` [s] and `node` (the node index, as stored), are attached to the
+    axes of the arrays, so netCDF readers (xarray with the h5netcdf engine) see named dimensions."""
     def write(p: Path) -> None:
         with h5py.File(p, "w") as f:
-            f.create_dataset("time_s", data=result.history.time_s)
-            f.create_dataset("position_mm", data=result.position_mm)
-            f.create_dataset("depth_mm", data=result.depth_mm)
-            f.create_dataset("temperature_c", data=result.history.temperature_c, compression="gzip")
-            for name in result.fraction_names:
-                f.create_dataset(name, data=result.fractions[name])
-            f.create_dataset("hv", data=result.hv)
-            f.create_dataset("hrc", data=result.hrc)
+            n_t, n_x = result.history.temperature_c.shape
+            time = f.create_dataset("time", data=result.history.time_s)
+            node = f.create_dataset("node", data=np.arange(n_x, dtype=np.int32))
+            time.make_scale("time")
+            node.make_scale("node")
+            f.create_dataset("time_s", data=result.history.time_s).dims[0].attach_scale(time)
+            by_node = {"position_mm": result.position_mm, "depth_mm": result.depth_mm}
+            by_node.update({name: result.fractions[name] for name in result.fraction_names})
+            by_node.update(hv=result.hv, hrc=result.hrc)
             if result.hv_tempered is not None:
-                f.create_dataset("hv_tempered", data=result.hv_tempered)
-                f.create_dataset("hrc_tempered", data=result.hrc_tempered)
-            f.create_dataset("cooling_rate_700_c_s", data=result.cooling_rate_700_c_s)
-            f.create_dataset("jominy_distance_mm", data=result.jominy_distance_mm)
+                by_node.update(hv_tempered=result.hv_tempered, hrc_tempered=result.hrc_tempered)
+            by_node.update(cooling_rate_700_c_s=result.cooling_rate_700_c_s,
+                           jominy_distance_mm=result.jominy_distance_mm)
+            temperature = f.create_dataset("temperature_c", data=result.history.temperature_c, compression="gzip")
+            temperature.dims[0].attach_scale(time)
+            temperature.dims[1].attach_scale(node)
+            for name, values in by_node.items():
+                f.create_dataset(name, data=values).dims[0].attach_scale(node)
+            for name, ds in f.items():
+                ds.attrs["units"] = H5_UNITS[name]
+                ds.attrs["long_name"] = H5_LONG_NAMES.get(name, name.replace("_", " "))
             f.attrs["case"] = result.case.source_text
             f.attrs["case_sha256"] = result.case.source_sha256
             f.attrs["program"] = "quenchwise"
@@ -238,10 +256,18 @@ def write_result_h5(result: Result, path: Path) -> None:
     _atomic_write(Path(path), write)
 
 
+H5_LONG_NAMES = {"time": "time from the start of the quench", "node": "mesh node index",
+                 "time_s": "time from the start of the quench", "position_mm": "distance from the centre line / mid-plane",
+                 "depth_mm": "depth below the quenched outer surface", "temperature_c": "node temperature",
+                 "hv": "Vickers hardness as quenched", "hrc": "Rockwell C hardness as quenched (ASTM E140)",
+                 "cooling_rate_700_c_s": "cooling rate at 700 C",
+                 "jominy_distance_mm": "equivalent end-quench (Jominy) distance"}
+
+
 def read_result_h5(path: Path) -> dict:
     """Datasets and attributes of a result.h5 as plain numpy arrays and strings."""
     with h5py.File(path, "r") as f:
-        data = {k: f[k][()] for k in f.keys()}
+        data = {k: f[k][()] for k in f.keys() if k not in ("time", "node")}
         data["attrs"] = {k: (v.decode() if isinstance(v, bytes) else v) for k, v in f.attrs.items()}
     return data
 
