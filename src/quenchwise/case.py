@@ -7,10 +7,12 @@ is allowed. Keys are lower case and carry their unit in the name (see README, ca
 from __future__ import annotations
 
 import hashlib
+import json
 import math
 import tomllib
 
 import numpy as np
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -381,11 +383,66 @@ def _record(table: dict) -> dict:
     return out
 
 
-def load_case(path: str | Path, defaults: dict | None = None) -> Case:
-    """Read and validate a case file; any problem is one InputError naming the file.
+def toml_text(data: Mapping) -> str:
+    """Case-file text (TOML) of a mapping of the case-file tables, so that a case built in Python
+    carries a source text and SHA-256 like a file does (tables nested at most two levels).
+
+    >>> print(toml_text({"title": "t", "steel": {"grade": "4140"}, "quench": {"severity_h": 0.5}}))
+    title = "t"
+    [steel]
+    grade = "4140"
+    [quench]
+    severity_h = 0.5
+    <BLANKLINE>
+    """
+    def value(v, key):
+        if isinstance(v, bool):
+            return "true" if v else "false"
+        if isinstance(v, (int, float)) and not isinstance(v, bool):
+            return repr(v) if math.isfinite(v) else ("nan" if v != v else ("inf" if v > 0 else "-inf"))
+        if isinstance(v, str):
+            return json.dumps(v)
+        if isinstance(v, (list, tuple)):
+            return "[" + ", ".join(value(x, key) for x in v) + "]"
+        raise InputError(key, v, "a number, text, true/false or a list of them")
+
+    def table(name, t, lines):
+        if not isinstance(t, Mapping):
+            raise InputError(name, t, f"a [{name}] table (a mapping)")
+        lines.append(f"[{name}]")
+        subs = []
+        for k, v in t.items():
+            if isinstance(v, Mapping):
+                subs.append((f"{name}.{k}", v))
+            else:
+                lines.append(f"{k} = {value(v, f'{name}.{k}')}")
+        for sub_name, sub in subs:
+            table(sub_name, sub, lines)
+
+    lines = [f"{k} = {value(v, k)}" for k, v in data.items() if not isinstance(v, Mapping)]
+    for k, v in data.items():
+        if isinstance(v, Mapping):
+            table(k, v, lines)
+    return "\n".join(lines) + "\n"
+
+
+def load_case(path: str | Path | Mapping, defaults: dict | None = None) -> Case:
+    """Read and validate a case file, or a mapping of its tables (as `tomllib.load` would give
+    them); any problem is one InputError naming the file ("(mapping)" for a mapping).
 
     defaults: whole tables used where the file has none (e.g. the end-quench test supplies its
     own [part] and [quench])."""
+    if isinstance(path, Mapping):
+        text = toml_text(path)
+        data = tomllib.loads(text)
+        if defaults:
+            data = {**data, **{k: v for k, v in defaults.items() if k not in data}}
+        try:
+            return parse_case(data, text, "(mapping)", Path.cwd())
+        except InputError as exc:
+            from .units import renamed_error, us_origins
+
+            raise renamed_error(exc, us_origins(data)).with_source("(mapping)") from None
     p = Path(path)
     name = str(path)
     try:

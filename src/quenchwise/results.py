@@ -76,6 +76,15 @@ class Result:
         centre = "mid-plane" if s.shape == "plate" else "centre"
         return [("surface", s.outer_m), (half, mid), (centre, s.inner_m)]
 
+    def to_dataframe(self):
+        """The profile as a pandas DataFrame (optional extra `pandas`): the columns of profile.csv,
+        one row per node from the quenched surface inward, full precision."""
+        try:
+            import pandas as pd
+        except ImportError:
+            raise ImportError("Result.to_dataframe needs pandas: pip install 'quenchwise[pandas]'") from None
+        return pd.DataFrame(profile_columns(self))
+
     def case_faces(self) -> str:
         return getattr(self.case, "dimensions_mm", {}).get("faces", "both")
 
@@ -184,23 +193,35 @@ def _atomic_write(path: Path, write) -> None:
         raise
 
 
+def profile_columns(result: Result) -> dict[str, np.ndarray]:
+    """The columns of profile.csv as arrays, one value per node from the quenched surface inward
+    (by depth; the Result's own arrays run from the centre line / inner end outward)."""
+    order = np.argsort(result.depth_mm, kind="stable")
+    columns = {"depth_mm": result.depth_mm, "position_mm": result.position_mm,
+               **{n: result.fractions[n] for n in result.fraction_names},
+               "hv": result.hv, "hrc": result.hrc, "cooling_rate_700_c_s": result.cooling_rate_700_c_s,
+               "jominy_distance_mm": result.jominy_distance_mm}
+    if result.hv_tempered is not None:
+        columns.update(hv_tempered=result.hv_tempered, hrc_tempered=result.hrc_tempered)
+    return {name: np.asarray(values)[order] for name, values in columns.items()}
+
+
+#: profile.csv formats by column (fractions: 5 decimals); empty where a value is NaN
+_CSV_FORMATS = {"depth_mm": "{:.4f}", "position_mm": "{:.4f}", "hv": "{:.1f}", "hrc": "{:.1f}",
+                "cooling_rate_700_c_s": "{:.5g}", "jominy_distance_mm": "{:.2f}", "hv_tempered": "{:.1f}",
+                "hrc_tempered": "{:.1f}"}
+
+
 def profile_csv_text(result: Result) -> str:
     """profile.csv: one row per node from the quenched surface inward (fixed formatting, so the
     same input gives the same bytes)."""
-    names = result.fraction_names
+    columns = profile_columns(result)
     out = io.StringIO()
     w = csv.writer(out, lineterminator="\n")
-    tempered = result.hv_tempered is not None
-    w.writerow(["depth_mm", "position_mm", *names, "hv", "hrc", "cooling_rate_700_c_s", "jominy_distance_mm",
-                *(("hv_tempered", "hrc_tempered") if tempered else ())])
-    order = np.argsort(result.depth_mm, kind="stable")
-    jominy = result.jominy_distance_mm
-    for j in order:
-        w.writerow([f"{result.depth_mm[j]:.4f}", f"{result.position_mm[j]:.4f}",
-                    *(f"{result.fractions[n][j]:.5f}" for n in names),
-                    _fmt(result.hv[j], "{:.1f}"), _fmt(result.hrc[j], "{:.1f}"),
-                    _fmt(result.cooling_rate_700_c_s[j], "{:.5g}"), _fmt(jominy[j], "{:.2f}"),
-                    *((_fmt(result.hv_tempered[j], "{:.1f}"), _fmt(result.hrc_tempered[j], "{:.1f}")) if tempered else ())])
+    w.writerow(list(columns))
+    formats = [_CSV_FORMATS.get(name, "{:.5f}") for name in columns]
+    for row in zip(*columns.values()):
+        w.writerow([_fmt(v, f) for v, f in zip(row, formats)])
     return out.getvalue()
 
 
