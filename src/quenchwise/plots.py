@@ -482,7 +482,9 @@ _LEVEL_STYLE = {"Ae3": ("#8d8d8d", "-."), "Acm": ("#8d8d8d", "-."), "Ae1": ("#8d
 
 
 def _steel_line(state, grain_size: float, model: str) -> str:
-    chem = ", ".join(f"{k.capitalize()} {v:g}" for k, v in state.composition.as_dict().items() if v > 0)
+    from .text_output import chemistry_text
+
+    chem = chemistry_text(state.composition.as_dict())
     extra = ""
     if state.ferrite > 1e-4:
         extra = f"; {100 * state.ferrite:.0f} % ferrite undissolved"
