@@ -336,7 +336,7 @@ def write_presets(folder=None) -> list[str]:
     from importlib import resources
     from pathlib import Path
 
-    from .probe import probe_figures
+    from .probe_figures import probe_figures
     from .quenchants import _parse
     from .severity import equivalent_severities
 
