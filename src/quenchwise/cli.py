@@ -259,7 +259,7 @@ def jominy(
 ) -> None:
     """Simulate the end-quench (Jominy) test of the case's steel, with its ideal critical diameter."""
     with _guard():
-        from .plots import jominy_figure
+        from .steel_figures import jominy_figure
         from .text_output import jominy_text
         from .workflows.jominy import DEFAULT_SETTINGS, RZ_SETTINGS, load_steel_case, read_band
         from .workflows.jominy import jominy as run_jominy
@@ -289,7 +289,7 @@ def diagram(
     """TTT or CCT diagram of the case's steel with the case's kinetics model."""
     with _guard():
         from .case import load_case
-        from .plots import cct_figure, ttt_figure
+        from .steel_figures import cct_figure, ttt_figure
         from .results import write_table_csv
         from .text_output import diagram_text
         from .workflows.diagram import DIAGRAM_KINDS, diagram as make_diagram
