@@ -17,6 +17,7 @@ from pathlib import Path
 import h5py
 import numpy as np
 
+from .formatting import csv_cell, rounded
 from .version import __version__
 from .hardness.jominy_equivalent import equivalent_jominy_distance_mm
 from .hardness.phases import HARDNESS_METHOD
@@ -101,19 +102,19 @@ class Result:
             hrc = self.at(self.hrc, r) if np.isfinite(self.hrc).all() else _nan_aware(self, self.hrc, r)
             rows.append({
                 "location": label, "depth_mm": round((self.history.section.outer_m - r) * 1000.0, 3),
-                "hrc": _round(hrc, 1), "hv": _round(hv, 0),
-                "martensite_pct": _round(100.0 * self.at(self.fractions["martensite"], r), 1),
-                "bainite_pct": _round(100.0 * self.at(self.fractions["bainite"], r), 1),
-                "ferrite_pearlite_pct": _round(100.0 * self.at(self.fractions["ferrite"] + self.fractions["pearlite"], r), 1),
-                "retained_austenite_pct": _round(100.0 * self.at(self.fractions["austenite"], r), 1),
-                "cooling_rate_700_c_s": _round(self.at(self.cooling_rate_700_c_s, r), 3),
-                "jominy_distance_mm": _round(float(equivalent_jominy_distance_mm(self.at(self.cooling_rate_700_c_s, r))), 1),
+                "hrc": rounded(hrc, 1), "hv": rounded(hv, 0),
+                "martensite_pct": rounded(100.0 * self.at(self.fractions["martensite"], r), 1),
+                "bainite_pct": rounded(100.0 * self.at(self.fractions["bainite"], r), 1),
+                "ferrite_pearlite_pct": rounded(100.0 * self.at(self.fractions["ferrite"] + self.fractions["pearlite"], r), 1),
+                "retained_austenite_pct": rounded(100.0 * self.at(self.fractions["austenite"], r), 1),
+                "cooling_rate_700_c_s": rounded(self.at(self.cooling_rate_700_c_s, r), 3),
+                "jominy_distance_mm": rounded(float(equivalent_jominy_distance_mm(self.at(self.cooling_rate_700_c_s, r))), 1),
             })
             rows[-1].update(_other_scales(hv, hrc))
             if self.hv_tempered is not None:
                 hv_t = self.at(self.hv_tempered, r)
                 hrc_t = _nan_aware(self, self.hrc_tempered, r)
-                rows[-1].update({"hrc_tempered": _round(hrc_t, 1), "hv_tempered": _round(hv_t, 0)})
+                rows[-1].update({"hrc_tempered": rounded(hrc_t, 1), "hv_tempered": rounded(hv_t, 0)})
                 rows[-1].update({f"{k}_tempered": v for k, v in _other_scales(hv_t, hrc_t).items()})
         return {
             "title": case.title,
@@ -125,7 +126,7 @@ class Result:
                       "undissolved_carbide": round(self.state.cementite, 4),
                       "ae1_c": round(self.state.ae1, 1), "ae3_c": round(self.state.ae3, 1),
                       "acm_c": round(self.state.acm, 1) if self.state.hypereutectoid else None,
-                      "ms_c": _round(self.ms_c, 1),
+                      "ms_c": rounded(self.ms_c, 1),
                       "critical_temperatures": critical_temperature_note(case.model)},
             "part": {"shape": self.history.section.shape, **case.dimensions_mm},
             "quench": {"outer": case.outer.name, "bath_c": case.outer.bath_c,
@@ -164,11 +165,7 @@ def _other_scales(hv: float, hrc: float) -> dict:
     if np.isfinite(hrc) or not np.isfinite(hv):
         return {}
     from .hardness import hb_from_hv, hrb_from_hv
-    return {"hrb": _round(float(hrb_from_hv(hv)), 1), "hb": _round(float(hb_from_hv(hv)), 0)}
-
-
-def _round(v, nd):
-    return None if v is None or not np.isfinite(v) else round(float(v), nd)
+    return {"hrb": rounded(float(hrb_from_hv(hv)), 1), "hb": rounded(float(hb_from_hv(hv)), 0)}
 
 
 def _nan_aware(result: Result, values: np.ndarray, r: float) -> float:
@@ -221,12 +218,8 @@ def profile_csv_text(result: Result) -> str:
     w.writerow(list(columns))
     formats = [_CSV_FORMATS.get(name, "{:.5f}") for name in columns]
     for row in zip(*columns.values()):
-        w.writerow([_fmt(v, f) for v, f in zip(row, formats)])
+        w.writerow([csv_cell(v, f) for v, f in zip(row, formats)])
     return out.getvalue()
-
-
-def _fmt(v, pattern):
-    return pattern.format(v) if np.isfinite(v) else ""
 
 
 def write_profile_csv(result: Result, path: Path) -> None:

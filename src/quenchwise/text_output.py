@@ -10,6 +10,7 @@ import math
 
 from .version import __version__
 from .cautions import CAUTION
+from .formatting import fmt
 from .units import Units
 
 #: What the sizing answer means by a constant severity, printed under the sizing answer.
@@ -20,15 +21,6 @@ SEVERITY_NOTE = (
     "above the mildest constant H can still fail (e.g. weak cooling where the steel transforms), and one below it "
     "can pass. Choose the quenchant from the list solved with the real curves, not from H alone."
 )
-
-
-def fmt(v, pattern: str = "{:.1f}") -> str:
-    """A number with the pattern, or '-' for a missing value.
-
-    >>> fmt(None), fmt(3.14159, "{:.2f}")
-    ('-', '3.14')
-    """
-    return "-" if v is None else pattern.format(v)
 
 
 def yes_no_na(meets, has_requirement: bool) -> str:

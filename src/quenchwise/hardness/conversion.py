@@ -7,7 +7,7 @@ a scale where they are valid (HV always is).
 
 from __future__ import annotations
 
-import csv
+from ..csvmeta import commented_csv_dicts
 from functools import lru_cache
 from importlib import resources
 
@@ -17,8 +17,7 @@ import numpy as np
 @lru_cache(maxsize=1)
 def _table() -> dict[str, np.ndarray]:
     text = (resources.files("quenchwise.hardness") / "astm_e140.csv").read_text("utf-8")
-    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    rows = list(csv.DictReader(lines))
+    rows = commented_csv_dicts(text)
     return {k: np.array([float(r[k]) if r[k] else np.nan for r in rows]) for k in ("hv", "hrc", "hb", "hrb")}
 
 

@@ -11,7 +11,7 @@ the specimen model is changed.
 
 from __future__ import annotations
 
-import csv
+from ..csvmeta import commented_csv_dicts
 from functools import lru_cache
 from importlib import resources
 
@@ -32,7 +32,7 @@ def endquench_rate_curve() -> tuple[np.ndarray, np.ndarray]:
     (1.587, 272.2, 50.8, 1.94)
     """
     text = (resources.files("quenchwise.hardness") / "endquench_cooling_rates.csv").read_text("utf-8")
-    rows = list(csv.DictReader(ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")))
+    rows = commented_csv_dicts(text)
     d = np.array([float(r["distance_sixteenths"]) for r in rows]) * SIXTEENTH_MM
     v = np.array([float(r["rate_c_s"]) for r in rows])
     return d, v

@@ -44,7 +44,7 @@ martensite in carbon and low-alloy steels", Metall. Trans. A 8, 1775-1785.
 
 from __future__ import annotations
 
-import csv
+from ..csvmeta import commented_csv_dicts
 from functools import lru_cache
 from importlib import resources
 
@@ -124,8 +124,7 @@ def one_hour_equivalent_c(temperature_c, hours, constant=DEFAULT_HJ_CONSTANT):
 @lru_cache(maxsize=1)
 def _table() -> dict[str, np.ndarray]:
     text = (resources.files("quenchwise.hardness") / "tempering_ghp1977.csv").read_text("utf-8")
-    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    rows = list(csv.DictReader(lines))
+    rows = commented_csv_dicts(text)
     return {k: np.array([float(r[k]) for r in rows]) for k in rows[0]}
 
 

@@ -3,13 +3,12 @@ checking that it is a plausible ISO 9950 type probe record, and the thermocouple
 
 from __future__ import annotations
 
-import csv
-import io
 from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
 
+from ..csvmeta import read_commented_csv
 from ..errors import InputError
 
 
@@ -122,19 +121,8 @@ def check_probe_curve(time_s, temperature_c, source: str = "probe curve") -> Non
 def parse_probe_curve(text: str, source: str = "probe curve") -> ProbeCurve:
     """A probe record from CSV text: optional '# key: value' lines, a header naming time_s and
     temperature_c (any order, other columns ignored), then one row per sample."""
-    meta: dict[str, str] = {}
-    rows: list[list[str]] = []
-    for line in text.splitlines():
-        s = line.strip()
-        if not s:
-            continue
-        if s.startswith("#"):
-            body = s.lstrip("#").strip()
-            if ":" in body:
-                k, v = body.split(":", 1)
-                meta[k.strip().lower()] = v.strip()
-            continue
-        rows.append([c.strip() for c in next(csv.reader(io.StringIO(s)))])
+    meta, rows = read_commented_csv(text)
+    rows = [[c.strip() for c in row] for row in rows]
     if not rows:
         raise InputError("header", "(missing)", "a header row with columns time_s and temperature_c", source=source)
     header = [c.lower() for c in rows[0]]

@@ -30,9 +30,7 @@ when the bath comes within results.FLASH_MARGIN_K of it.
 
 from __future__ import annotations
 
-import csv
 import difflib
-import io
 import math
 import re
 from dataclasses import dataclass, field, replace
@@ -41,6 +39,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ..csvmeta import read_commented_csv
 from ..errors import InputError
 
 #: Conductivity of steel used to convert Grossmann H (1/inch) to h: H = h / (2 k) [W/(m K)].
@@ -132,19 +131,7 @@ def builtin_names() -> list[str]:
 
 
 def _parse(text: str, origin: str, key: str) -> Quenchant:
-    meta: dict[str, str] = {}
-    rows: list[list[str]] = []
-    for line in text.splitlines():
-        stripped = line.strip()
-        if not stripped:
-            continue
-        if stripped.startswith("#"):
-            body = stripped.lstrip("#").strip()
-            if ":" in body:
-                k, v = body.split(":", 1)
-                meta[k.strip().lower()] = v.strip()
-            continue
-        rows.append(next(csv.reader(io.StringIO(stripped))))
+    meta, rows = read_commented_csv(text)
     allowed = "a CSV with a header row and two columns: surface temperature (C), h (W/m2K)"
     if len(rows) < 3:
         raise InputError(key, origin, allowed + ", at least two data rows")

@@ -10,6 +10,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ..errors import InputError
+from ..formatting import rounded
 
 PROBE_NOTE = ("probe: ISO 9950 type probe (12.5 mm alloy 600, from 850 C, centre), 1-D model (thermal/probe.py): "
               "max cooling rate K/s at centre temperature C, rate at 300 C, times to 600/400/200 C")
@@ -24,18 +25,14 @@ def file_stem(name: str) -> str:
     return re.sub(r"[^A-Za-z0-9_.-]+", "_", name).strip("._") or "quenchant"
 
 
-def _rounded(v, nd):
-    return None if v != v else round(v, nd)
-
-
 def severity_row(q, s, figures: dict | None = None) -> dict:
     """One quenchant's row of the `quenchants` list: its data, equivalent severity and probe figures."""
     row = {"name": q.name, "description": q.description, "kind": q.kind, "bath_c": q.bath_c,
            "agitation": q.agitation or None, "flash_point_c": q.flash_point_c, "emissivity": q.emissivity,
-           "equivalent_h_per_inch": _rounded(s.grossmann_h, 3), "equivalent_htc_w_m2k": _rounded(s.htc_w_m2k, 1),
-           "centre_800_500_s": _rounded(s.time_800_500_s, 2), "severity_note": s.note or None, "source": q.source}
+           "equivalent_h_per_inch": rounded(s.grossmann_h, 3), "equivalent_htc_w_m2k": rounded(s.htc_w_m2k, 1),
+           "centre_800_500_s": rounded(s.time_800_500_s, 2), "severity_note": s.note or None, "source": q.source}
     if figures is not None:
-        row["probe"] = {k: _rounded(v, 2) for k, v in figures.items()}
+        row["probe"] = {k: rounded(v, 2) for k, v in figures.items()}
     return row
 
 
@@ -118,10 +115,10 @@ class ProbeAnswer:
         return {"name": q.name, "record": str(curve), "samples": int(self.record.time_s.size), "bath_c": self.bath_c,
                 "method": "Beck's sequential function specification, 1-D alloy 600 cylinder 12.5 mm",
                 "time_step_s": round(fit.dt_s, 6), "future_steps": fit.future_steps,
-                "regularization": fit.regularization, "noise_k": _rounded(fit.noise_k, 3),
+                "regularization": fit.regularization, "noise_k": rounded(fit.noise_k, 3),
                 "refit_rms_k": round(fit.rms_k, 2), "refit_max_k": round(fit.max_k, 2),
                 "surface_range_c": [float(q.surface_c[0]), float(q.surface_c[-1])],
-                "equivalent_h_per_inch": _rounded(s.grossmann_h, 3),
+                "equivalent_h_per_inch": rounded(s.grossmann_h, 3),
                 "tc_time_constant_s": fit.tc_time_constant_s, "end_correction": end_correction,
                 "warnings": list(fit.warnings), "severity_definition": DEFINITION}
 
