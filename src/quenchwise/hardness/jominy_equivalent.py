@@ -47,6 +47,16 @@ def equivalent_jominy_distance_mm(rate_700_c_s):
     Reference: ASTM A255, end-quench cooling-rate scale (memory); the equal-rate-at-700 C
     convention (Grossmann; memory).
 
+    Parameters
+    ----------
+    rate_700_c_s : float or array_like
+        Cooling rate at 700 C [K/s].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Equivalent end-quench distance [mm], NaN beyond the curve.
+
     >>> [round(float(x), 2) for x in equivalent_jominy_distance_mm(np.array([169.4, 18.3, 10.0, 1000.0, 1.0]))]
     [3.17, 12.7, 17.83, nan, nan]
     """
@@ -62,6 +72,19 @@ def equivalent_jominy_distance_mm(rate_700_c_s):
 
 def equivalent_jominy_sixteenths(rate_700_c_s):
     """The same as equivalent_jominy_distance_mm, in sixteenths of an inch (J number).
+
+    Same range as equivalent_jominy_distance_mm (the published end-quench curve,
+    hardness/endquench_cooling_rates.csv).
+
+    Parameters
+    ----------
+    rate_700_c_s : float or array_like
+        Cooling rate at 700 C [K/s].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Equivalent end-quench distance [1/16 in], NaN beyond the curve.
 
     >>> round(float(equivalent_jominy_sixteenths(18.3)), 2)
     8.0
