@@ -5,6 +5,11 @@
     python benchmarks/run_all.py --markdown      # also print the figures as a Markdown table
     python benchmarks/run_all.py --table benchmarks/latest.md   # and write that table to a file
     python benchmarks/run_all.py --profile       # cProfile of one 200-case batch solve
+    python benchmarks/run_all.py --quick         # smoke run for CI (.ci/run): small sizes, 1 repeat
+
+--quick runs every benchmark on small sizes (20 cases instead of 200, 20 heats instead of 200, one
+repeat, no targets judged): it only shows that the benchmarks still run, so they cannot rot. The
+figures table comes from the full run.
 
 Each benchmark is a function registered with @benchmark(name); it receives the shared context
 (a dict: earlier benchmarks may leave runs there for later ones, e.g. the batch run that the
@@ -103,25 +108,25 @@ def single_bar(ctx, repeat):
 
 
 # -- (b) 200 cases in one batch -----------------------------------------------------------------
-def batch_cases():
-    """50 diameters from 10 to 150 mm x 4 quenchants: the built-in still oil and still water
+def batch_cases(quick=False):
+    """50 diameters (5 with quick) from 10 to 150 mm x 4 quenchants: the built-in still oil and still water
     curves, a constant h of 3000 W/m2K at 30 C and Grossmann H = 0.35 1/in at 40 C (h from
     H = h / 2k, k = 25 W/mK). Until the centre is below 100 C."""
     quenchants = [load_quenchant(OIL), load_quenchant("water_20c_still"),
                   Quenchant.constant(3000.0, 30.0),
                   Quenchant.constant(float(htc_from_grossmann(0.35)), 40.0, name="Grossmann H 0.35")]
     return [ThermalCase(f"bar {d:.0f} mm, {q.name}", Section.bar(d / 1000.0), q, 850.0, 100.0)
-            for d in np.linspace(10.0, 150.0, 50) for q in quenchants]
+            for d in np.linspace(10.0, 150.0, 5 if quick else 50) for q in quenchants]
 
 
 @benchmark("batch_200")
 def batch_200(ctx, repeat):
-    cases = batch_cases()
+    cases = batch_cases(ctx.get("quick", False))
     best, median, cpu, (solver, _, histories) = timed(lambda: solve(cases), repeat)
     steps = np.array([h.steps for h in histories])
     node_steps = int(np.sum(steps * solver.counts))
     ctx["batch"] = dict(cases=cases, solver=solver, histories=histories, wall=best, cpu=cpu, node_steps=node_steps)
-    return [("(b) 200 cases in one batch: wall time per case", best / len(cases), "s", 0.3),
+    return [(f"(b) {len(cases)} cases in one batch: wall time per case", best / len(cases), "s", 0.3),
             ("(b) ... wall time of the batch", best, "s", None),
             ("(b) ... median of the batch", median, "s", None),
             ("(b) ... CPU time of the batch", cpu, "s", None),
@@ -169,11 +174,11 @@ def surface_conditions(ctx, repeat):
     cases calling Quenchant.htc (the solver's first version, reproduced here) against the solver's
     vectorized evaluation. The loop version ran twice per step (sink, then the recorded surface
     temperature)."""
-    cases = batch_cases()
+    cases = batch_cases(ctx.get("quick", False))
     solver = BatchSolver(cases)
     temperature = solver.initial.copy()
     mixture = solver.tables.mixture(np.ones((3, solver.n_nodes)) * np.array([[1.0], [0.0], [0.0]]))
-    k, _, _ = solver._properties(temperature, mixture)
+    k, _, _ = solver.overrides.properties(temperature, mixture)
     dx = solver.dx
 
     def one_surface(q, node, area):
@@ -204,7 +209,7 @@ def surface_conditions(ctx, repeat):
     reps = 20 * repeat
     t_loop = timed(lambda: [loop() for _ in range(reps)], 1)[0] / reps
     t_vec = timed(lambda: [vectorized() for _ in range(reps)], 1)[0] / reps
-    rows = [("surface conditions per step, per-case loop (200 cases)", 1e3 * t_loop, "ms", None),
+    rows = [(f"surface conditions per step, per-case loop ({len(cases)} cases)", 1e3 * t_loop, "ms", None),
             ("surface conditions per step, vectorized", 1e3 * t_vec, "ms", None)]
     if "batch" in ctx:
         steps = max(h.steps for h in ctx["batch"]["histories"])
@@ -235,21 +240,24 @@ def questions(ctx, repeat):
     from quenchwise.workflows.size import size
 
     case = _pin_case()
+    heats = 20 if ctx.get("quick") else 200
     single, _, single_cpu, _ = timed(lambda: simulate([case]), repeat)
-    band_t, _, band_cpu, _ = timed(lambda: band(case, samples=200, seed=1), repeat)
+    band_t, _, band_cpu, _ = timed(lambda: band(case, samples=heats, seed=1), repeat)
     size_t, _, size_cpu, answer = timed(lambda: size(case), 1)
     solved = len(answer.severity.evaluated) + len(answer.quenchants) + len(answer.size.evaluated)
     jom_t, _, jom_cpu, _ = timed(lambda: jominy([case], physics_di=False), repeat)
-    jdi_t, _, _, _ = timed(lambda: jominy([case], physics_di=True), 1)
-    return [("(q) demo pin solved alone: wall time", single, "s", None),
-            ("(q) chemistry band, 200 heats in one batch: wall time", band_t, "s", None),
-            ("(q) ... per heat / single solve", band_t / 200 / single, "", None),
-            ("(q) ... CPU per heat / single CPU", band_cpu / 200 / single_cpu, "", None),
+    rows = [("(q) demo pin solved alone: wall time", single, "s", None),
+            (f"(q) chemistry band, {heats} heats in one batch: wall time", band_t, "s", None),
+            ("(q) ... per heat / single solve", band_t / heats / single, "", None),
+            ("(q) ... CPU per heat / single CPU", band_cpu / heats / single_cpu, "", None),
             ("(q) sizing search (severity, all built-in quenchants, size): wall time", size_t, "s", None),
             ("(q) ... cases solved / wall time in single solves", f"{solved} / {size_t / single:.1f}", "", None),
             ("(q) end-quench test, 1-D axial, no DI search: wall time", jom_t, "s", None),
-            ("(q) ... / single solve", jom_t / single, "", None),
-            ("(q) end-quench test with the simulated DI search: wall time", jdi_t, "s", None)]
+            ("(q) ... / single solve", jom_t / single, "", None)]
+    if ctx.get("quick"):
+        return rows
+    jdi_t, _, _, _ = timed(lambda: jominy([case], physics_di=True), 1)
+    return rows + [("(q) end-quench test with the simulated DI search: wall time", jdi_t, "s", None)]
 
 
 def machine() -> list[str]:
@@ -320,6 +328,8 @@ def main(argv=None):
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--only", nargs="*", choices=list(BENCHMARKS), help="benchmarks to run (default: all)")
     parser.add_argument("--repeat", type=int, default=3, help="timed runs per figure; the best is reported")
+    parser.add_argument("--quick", action="store_true",
+                        help="smoke run (CI): small sizes, one repeat, no targets judged")
     parser.add_argument("--markdown", action="store_true", help="print a Markdown table as well")
     parser.add_argument("--table", type=Path, default=None,
                         help="also write the Markdown table, with the machine and command, to this file")
@@ -333,13 +343,14 @@ def main(argv=None):
     command = "python " + " ".join([Path(sys.argv[0]).as_posix()] + (argv if argv is not None else sys.argv[1:]))
     print("command: " + command)
     warm_up()
-    ctx, rows = {}, []
+    ctx, rows = {"quick": args.quick}, []
+    repeat = 1 if args.quick else args.repeat
     for name in names:
         t0 = time.perf_counter()
-        new = BENCHMARKS[name](ctx, args.repeat)
+        new = BENCHMARKS[name](ctx, repeat)
         rows += new
         for label, value, unit, target in new:
-            verdict = "" if target is None else ("  target <= %s: %s" % (fmt(target), "met" if value <= target else "MISSED"))
+            verdict = "" if target is None or args.quick else ("  target <= %s: %s" % (fmt(target), "met" if value <= target else "MISSED"))
             print(f"{label:70s} {fmt(value):>14s} {unit:3s}{verdict}")
         print(f"[{name}: {time.perf_counter() - t0:.1f} s]")
     table = ["| figure | value | unit | target |", "| --- | ---: | --- | --- |"]

@@ -1,22 +1,27 @@
 """quenchwise: quench hardening prediction for steel parts.
 
+Python API (see README, "Python API"): load_case, simulate, compare, size, band, jominy, Result.
+
 Data flow (one folder per stage):
     case.py -> steel/ -> thermal/ <-> kinetics/ -> hardness/ -> results.py -> plots.py, cli.py
 """
 
-__all__ = ["__version__"]
+#: The public API (quenchwise.api), loaded on first use.
+API = ("load_case", "simulate", "compare", "size", "band", "jominy", "Result", "Case")
+
+__all__ = ["__version__", *API]
 
 
 def __getattr__(name: str):
-    # The version is looked up on first use, so importing the package stays instant (the command
-    # line installs its signal handlers right after it).
-    if name != "__version__":
-        raise AttributeError(name)
-    from importlib.metadata import PackageNotFoundError, version
+    # Everything is looked up on first use, so importing the package stays instant (the command
+    # line installs its signal handlers right after it) and loads no FiPy nor matplotlib.
+    if name == "__version__":
+        from .version import __version__ as value
+    elif name in API:
+        from . import api
 
-    try:
-        value = version("quenchwise")
-    except PackageNotFoundError:  # running from a source tree that was not installed
-        value = "0.0.0+unknown"
-    globals()["__version__"] = value
+        value = getattr(api, name)
+    else:
+        raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+    globals()[name] = value
     return value

@@ -11,16 +11,18 @@ import math
 import tomllib
 
 import numpy as np
+from collections.abc import Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from .errors import InputError
+from .tomltext import toml_text
 from .steel.composition import ELEMENTS, Composition
 from .steel.austenite import austenitize
 from .steel.grades import find_grade
 from .thermal.geometry import Section
 from .thermal.quenchants import Quenchant, htc_from_grossmann, load_quenchant
-from .thermal.solver import SolverSettings
+from .thermal.settings import SolverSettings
 from .units import US_KEYS, si_keys
 
 SECTIONS = {
@@ -385,11 +387,23 @@ def _record(table: dict) -> dict:
     return out
 
 
-def load_case(path: str | Path, defaults: dict | None = None) -> Case:
-    """Read and validate a case file; any problem is one InputError naming the file.
+def load_case(path: str | Path | Mapping, defaults: dict | None = None) -> Case:
+    """Read and validate a case file, or a mapping of its tables (as `tomllib.load` would give
+    them); any problem is one InputError naming the file ("(mapping)" for a mapping).
 
     defaults: whole tables used where the file has none (e.g. the end-quench test supplies its
     own [part] and [quench])."""
+    if isinstance(path, Mapping):
+        text = toml_text(path)
+        data = tomllib.loads(text)
+        if defaults:
+            data = {**data, **{k: v for k, v in defaults.items() if k not in data}}
+        try:
+            return parse_case(data, text, "(mapping)", Path.cwd())
+        except InputError as exc:
+            from .units import renamed_error, us_origins
+
+            raise renamed_error(exc, us_origins(data)).with_source("(mapping)") from None
     p = Path(path)
     name = str(path)
     try:

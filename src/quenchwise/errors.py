@@ -25,3 +25,7 @@ class InputError(ValueError):
 
     def with_source(self, source: str) -> "InputError":
         return InputError(self.key, self.value, self.allowed, source=source)
+
+
+class SolverError(RuntimeError):
+    """The time integration could not finish a case (names the case and the time reached)."""

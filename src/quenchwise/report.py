@@ -17,8 +17,9 @@ import matplotlib.pyplot as plt  # noqa: E402
 import numpy as np  # noqa: E402
 from matplotlib.patches import Circle, Rectangle, Wedge  # noqa: E402
 
-from . import __version__  # noqa: E402
+from .version import __version__  # noqa: E402
 from .cautions import CAUTION  # noqa: E402
+from .text_output import chemistry_text  # noqa: E402
 from .hardness import hrc_from_hv, hv_from_hrc  # noqa: E402
 from .workflows.requirement import (  # noqa: E402
     effective_depth_mm,
@@ -227,7 +228,7 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
     _sketch(fig.add_axes([0.04, 0.70, 0.30, 0.15]), result, u)
 
     c = case.composition.as_dict()
-    chem = "  ".join(f"{k.capitalize()} {v:.2f}" for k, v in c.items() if v > 0)
+    chem = chemistry_text(c, "  ", "{:.2f}")
     st = result.state
     T = u.fmt_temperature
     lines = [

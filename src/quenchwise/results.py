@@ -17,7 +17,8 @@ from pathlib import Path
 import h5py
 import numpy as np
 
-from . import __version__
+from .formatting import csv_cell, rounded
+from .version import __version__
 from .hardness.jominy_equivalent import equivalent_jominy_distance_mm
 from .hardness.phases import HARDNESS_METHOD
 from .kinetics import critical_temperature_note
@@ -76,6 +77,15 @@ class Result:
         centre = "mid-plane" if s.shape == "plate" else "centre"
         return [("surface", s.outer_m), (half, mid), (centre, s.inner_m)]
 
+    def to_dataframe(self):
+        """The profile as a pandas DataFrame (optional extra `pandas`): the columns of profile.csv,
+        one row per node from the quenched surface inward, full precision."""
+        try:
+            import pandas as pd
+        except ImportError:
+            raise ImportError("Result.to_dataframe needs pandas: pip install 'quenchwise[pandas]'") from None
+        return pd.DataFrame(profile_columns(self))
+
     def case_faces(self) -> str:
         return getattr(self.case, "dimensions_mm", {}).get("faces", "both")
 
@@ -92,19 +102,19 @@ class Result:
             hrc = self.at(self.hrc, r) if np.isfinite(self.hrc).all() else _nan_aware(self, self.hrc, r)
             rows.append({
                 "location": label, "depth_mm": round((self.history.section.outer_m - r) * 1000.0, 3),
-                "hrc": _round(hrc, 1), "hv": _round(hv, 0),
-                "martensite_pct": _round(100.0 * self.at(self.fractions["martensite"], r), 1),
-                "bainite_pct": _round(100.0 * self.at(self.fractions["bainite"], r), 1),
-                "ferrite_pearlite_pct": _round(100.0 * self.at(self.fractions["ferrite"] + self.fractions["pearlite"], r), 1),
-                "retained_austenite_pct": _round(100.0 * self.at(self.fractions["austenite"], r), 1),
-                "cooling_rate_700_c_s": _round(self.at(self.cooling_rate_700_c_s, r), 3),
-                "jominy_distance_mm": _round(float(equivalent_jominy_distance_mm(self.at(self.cooling_rate_700_c_s, r))), 1),
+                "hrc": rounded(hrc, 1), "hv": rounded(hv, 0),
+                "martensite_pct": rounded(100.0 * self.at(self.fractions["martensite"], r), 1),
+                "bainite_pct": rounded(100.0 * self.at(self.fractions["bainite"], r), 1),
+                "ferrite_pearlite_pct": rounded(100.0 * self.at(self.fractions["ferrite"] + self.fractions["pearlite"], r), 1),
+                "retained_austenite_pct": rounded(100.0 * self.at(self.fractions["austenite"], r), 1),
+                "cooling_rate_700_c_s": rounded(self.at(self.cooling_rate_700_c_s, r), 3),
+                "jominy_distance_mm": rounded(float(equivalent_jominy_distance_mm(self.at(self.cooling_rate_700_c_s, r))), 1),
             })
             rows[-1].update(_other_scales(hv, hrc))
             if self.hv_tempered is not None:
                 hv_t = self.at(self.hv_tempered, r)
                 hrc_t = _nan_aware(self, self.hrc_tempered, r)
-                rows[-1].update({"hrc_tempered": _round(hrc_t, 1), "hv_tempered": _round(hv_t, 0)})
+                rows[-1].update({"hrc_tempered": rounded(hrc_t, 1), "hv_tempered": rounded(hv_t, 0)})
                 rows[-1].update({f"{k}_tempered": v for k, v in _other_scales(hv_t, hrc_t).items()})
         return {
             "title": case.title,
@@ -116,7 +126,7 @@ class Result:
                       "undissolved_carbide": round(self.state.cementite, 4),
                       "ae1_c": round(self.state.ae1, 1), "ae3_c": round(self.state.ae3, 1),
                       "acm_c": round(self.state.acm, 1) if self.state.hypereutectoid else None,
-                      "ms_c": _round(self.ms_c, 1),
+                      "ms_c": rounded(self.ms_c, 1),
                       "critical_temperatures": critical_temperature_note(case.model)},
             "part": {"shape": self.history.section.shape, **case.dimensions_mm},
             "quench": {"outer": case.outer.name, "bath_c": case.outer.bath_c,
@@ -155,11 +165,7 @@ def _other_scales(hv: float, hrc: float) -> dict:
     if np.isfinite(hrc) or not np.isfinite(hv):
         return {}
     from .hardness import hb_from_hv, hrb_from_hv
-    return {"hrb": _round(float(hrb_from_hv(hv)), 1), "hb": _round(float(hb_from_hv(hv)), 0)}
-
-
-def _round(v, nd):
-    return None if v is None or not np.isfinite(v) else round(float(v), nd)
+    return {"hrb": rounded(float(hrb_from_hv(hv)), 1), "hb": rounded(float(hb_from_hv(hv)), 0)}
 
 
 def _nan_aware(result: Result, values: np.ndarray, r: float) -> float:
@@ -184,28 +190,36 @@ def _atomic_write(path: Path, write) -> None:
         raise
 
 
+def profile_columns(result: Result) -> dict[str, np.ndarray]:
+    """The columns of profile.csv as arrays, one value per node from the quenched surface inward
+    (by depth; the Result's own arrays run from the centre line / inner end outward)."""
+    order = np.argsort(result.depth_mm, kind="stable")
+    columns = {"depth_mm": result.depth_mm, "position_mm": result.position_mm,
+               **{n: result.fractions[n] for n in result.fraction_names},
+               "hv": result.hv, "hrc": result.hrc, "cooling_rate_700_c_s": result.cooling_rate_700_c_s,
+               "jominy_distance_mm": result.jominy_distance_mm}
+    if result.hv_tempered is not None:
+        columns.update(hv_tempered=result.hv_tempered, hrc_tempered=result.hrc_tempered)
+    return {name: np.asarray(values)[order] for name, values in columns.items()}
+
+
+#: profile.csv formats by column (fractions: 5 decimals); empty where a value is NaN
+_CSV_FORMATS = {"depth_mm": "{:.4f}", "position_mm": "{:.4f}", "hv": "{:.1f}", "hrc": "{:.1f}",
+                "cooling_rate_700_c_s": "{:.5g}", "jominy_distance_mm": "{:.2f}", "hv_tempered": "{:.1f}",
+                "hrc_tempered": "{:.1f}"}
+
+
 def profile_csv_text(result: Result) -> str:
     """profile.csv: one row per node from the quenched surface inward (fixed formatting, so the
     same input gives the same bytes)."""
-    names = result.fraction_names
+    columns = profile_columns(result)
     out = io.StringIO()
     w = csv.writer(out, lineterminator="\n")
-    tempered = result.hv_tempered is not None
-    w.writerow(["depth_mm", "position_mm", *names, "hv", "hrc", "cooling_rate_700_c_s", "jominy_distance_mm",
-                *(("hv_tempered", "hrc_tempered") if tempered else ())])
-    order = np.argsort(result.depth_mm, kind="stable")
-    jominy = result.jominy_distance_mm
-    for j in order:
-        w.writerow([f"{result.depth_mm[j]:.4f}", f"{result.position_mm[j]:.4f}",
-                    *(f"{result.fractions[n][j]:.5f}" for n in names),
-                    _fmt(result.hv[j], "{:.1f}"), _fmt(result.hrc[j], "{:.1f}"),
-                    _fmt(result.cooling_rate_700_c_s[j], "{:.5g}"), _fmt(jominy[j], "{:.2f}"),
-                    *((_fmt(result.hv_tempered[j], "{:.1f}"), _fmt(result.hrc_tempered[j], "{:.1f}")) if tempered else ())])
+    w.writerow(list(columns))
+    formats = [_CSV_FORMATS.get(name, "{:.5f}") for name in columns]
+    for row in zip(*columns.values()):
+        w.writerow([csv_cell(v, f) for v, f in zip(row, formats)])
     return out.getvalue()
-
-
-def _fmt(v, pattern):
-    return pattern.format(v) if np.isfinite(v) else ""
 
 
 def write_profile_csv(result: Result, path: Path) -> None:
@@ -213,23 +227,41 @@ def write_profile_csv(result: Result, path: Path) -> None:
     _atomic_write(Path(path), lambda p: p.write_text(text, "utf-8"))
 
 
+#: Units of the result.h5 datasets (the `units` attribute of each; "1" for fractions and counts).
+H5_UNITS = {"time": "s", "node": "1", "time_s": "s", "position_mm": "mm", "depth_mm": "mm", "temperature_c": "degC",
+            "hv": "HV", "hrc": "HRC", "hv_tempered": "HV", "hrc_tempered": "HRC", "cooling_rate_700_c_s": "K/s",
+            "jominy_distance_mm": "mm", **{name: "1" for name in FRACTIONS + ("cementite",)}}
+
+
 def write_result_h5(result: Result, path: Path) -> None:
-    """result.h5 with the datasets of the contract; case text and program version as attributes."""
+    """result.h5 with the datasets of the contract; case text and program version as attributes.
+
+    Self-describing: every dataset has a `units` attribute (H5_UNITS) and a `long_name`, and two
+    HDF5 dimension scales, `time` [s] and `node` (the node index, as stored), are attached to the
+    axes of the arrays, so netCDF readers (xarray with the h5netcdf engine) see named dimensions."""
     def write(p: Path) -> None:
         with h5py.File(p, "w") as f:
-            f.create_dataset("time_s", data=result.history.time_s)
-            f.create_dataset("position_mm", data=result.position_mm)
-            f.create_dataset("depth_mm", data=result.depth_mm)
-            f.create_dataset("temperature_c", data=result.history.temperature_c, compression="gzip")
-            for name in result.fraction_names:
-                f.create_dataset(name, data=result.fractions[name])
-            f.create_dataset("hv", data=result.hv)
-            f.create_dataset("hrc", data=result.hrc)
+            n_t, n_x = result.history.temperature_c.shape
+            time = f.create_dataset("time", data=result.history.time_s)
+            node = f.create_dataset("node", data=np.arange(n_x, dtype=np.int32))
+            time.make_scale("time")
+            node.make_scale("node")
+            f.create_dataset("time_s", data=result.history.time_s).dims[0].attach_scale(time)
+            by_node = {"position_mm": result.position_mm, "depth_mm": result.depth_mm}
+            by_node.update({name: result.fractions[name] for name in result.fraction_names})
+            by_node.update(hv=result.hv, hrc=result.hrc)
             if result.hv_tempered is not None:
-                f.create_dataset("hv_tempered", data=result.hv_tempered)
-                f.create_dataset("hrc_tempered", data=result.hrc_tempered)
-            f.create_dataset("cooling_rate_700_c_s", data=result.cooling_rate_700_c_s)
-            f.create_dataset("jominy_distance_mm", data=result.jominy_distance_mm)
+                by_node.update(hv_tempered=result.hv_tempered, hrc_tempered=result.hrc_tempered)
+            by_node.update(cooling_rate_700_c_s=result.cooling_rate_700_c_s,
+                           jominy_distance_mm=result.jominy_distance_mm)
+            temperature = f.create_dataset("temperature_c", data=result.history.temperature_c, compression="gzip")
+            temperature.dims[0].attach_scale(time)
+            temperature.dims[1].attach_scale(node)
+            for name, values in by_node.items():
+                f.create_dataset(name, data=values).dims[0].attach_scale(node)
+            for name, ds in f.items():
+                ds.attrs["units"] = H5_UNITS[name]
+                ds.attrs["long_name"] = H5_LONG_NAMES.get(name, name.replace("_", " "))
             f.attrs["case"] = result.case.source_text
             f.attrs["case_sha256"] = result.case.source_sha256
             f.attrs["program"] = "quenchwise"
@@ -238,10 +270,18 @@ def write_result_h5(result: Result, path: Path) -> None:
     _atomic_write(Path(path), write)
 
 
+H5_LONG_NAMES = {"time": "time from the start of the quench", "node": "mesh node index",
+                 "time_s": "time from the start of the quench", "position_mm": "distance from the centre line / mid-plane",
+                 "depth_mm": "depth below the quenched outer surface", "temperature_c": "node temperature",
+                 "hv": "Vickers hardness as quenched", "hrc": "Rockwell C hardness as quenched (ASTM E140)",
+                 "cooling_rate_700_c_s": "cooling rate at 700 C",
+                 "jominy_distance_mm": "equivalent end-quench (Jominy) distance"}
+
+
 def read_result_h5(path: Path) -> dict:
     """Datasets and attributes of a result.h5 as plain numpy arrays and strings."""
     with h5py.File(path, "r") as f:
-        data = {k: f[k][()] for k in f.keys()}
+        data = {k: f[k][()] for k in f.keys() if k not in ("time", "node")}
         data["attrs"] = {k: (v.decode() if isinstance(v, bytes) else v) for k, v in f.attrs.items()}
     return data
 

@@ -6,8 +6,11 @@ follow a units.Units (SI by default; ``--units us`` gives inches and Fahrenheit)
 
 from __future__ import annotations
 
-from . import __version__
+import math
+
+from .version import __version__
 from .cautions import CAUTION
+from .formatting import fmt
 from .units import Units
 
 #: What the sizing answer means by a constant severity, printed under the sizing answer.
@@ -18,15 +21,6 @@ SEVERITY_NOTE = (
     "above the mildest constant H can still fail (e.g. weak cooling where the steel transforms), and one below it "
     "can pass. Choose the quenchant from the list solved with the real curves, not from H alone."
 )
-
-
-def fmt(v, pattern: str = "{:.1f}") -> str:
-    """A number with the pattern, or '-' for a missing value.
-
-    >>> fmt(None), fmt(3.14159, "{:.2f}")
-    ('-', '3.14')
-    """
-    return "-" if v is None else pattern.format(v)
 
 
 def yes_no_na(meets, has_requirement: bool) -> str:
@@ -59,7 +53,7 @@ def run_summary_text(summary: dict, files: list, units: Units | None = None) -> 
     s = summary
     steel = s["steel"]
     T = u.fmt_temperature
-    chem = ", ".join(f"{k.capitalize()} {v:g}" for k, v in steel["composition_wt_pct"].items() if v > 0)
+    chem = chemistry_text(steel["composition_wt_pct"])
     dims = ", ".join(f"{k.replace('_mm', '')} {u.fmt_length(v, 3 if u.us else 1)}" if k.endswith("_mm") else f"{k} {v}"
                      for k, v in s["part"].items() if k != "shape")
     lines = [
@@ -158,4 +152,193 @@ def size_text(title: str, d: dict, medium_name: str, files: list, units: Units |
              + f"; this part: {L(big['case_size_mm'])}",
              SEVERITY_NOTE,
              "wrote   " + ", ".join(str(f) for f in files)]
+    return "\n".join(lines)
+
+
+def wrote(files: list) -> str:
+    """The 'wrote' line of a summary."""
+    return "wrote   " + ", ".join(str(f) for f in files)
+
+
+def chemistry_text(composition_wt_pct: dict, sep: str = ", ", pattern: str = "{:g}") -> str:
+    """The chemistry as shown in summaries, figures and the sheet: the elements present, capitalized.
+
+    >>> chemistry_text({"c": 0.4, "mn": 0.85, "ni": 0.0})
+    'C 0.4, Mn 0.85'
+    >>> chemistry_text({"c": 0.4, "mn": 0.85}, "  ", "{:.2f}")
+    'C 0.40  Mn 0.85'
+    """
+    return sep.join(f"{k.capitalize()} {pattern.format(v)}" for k, v in composition_wt_pct.items() if v > 0)
+
+
+def band_line(label: str, row: dict) -> str:
+    """HRC min / median / max at one position; HV where below HRC 20 (never 'nan')."""
+    ks = ("min", "median", "max")
+    if all(row[f"hrc_{k}"] != row[f"hrc_{k}"] for k in ks):
+        return f"{label:<10}below HRC 20 for every heat ({row['hv_min']:.0f}-{row['hv_max']:.0f} HV)"
+    cells = [f"{row[f'hrc_{k}']:.1f}" if row[f"hrc_{k}"] == row[f"hrc_{k}"] else f"{row[f'hv_{k}']:.0f} HV" for k in ks]
+    return f"{label:<10}" + "".join(f"{c:>9}" for c in cells)
+
+
+def band_text(title: str | None, grade: str, samples: int, seed: int, rows: list[dict], share: float | None,
+              requirement: str | None, files: list) -> str:
+    """The `band` summary: HRC min / median / max at the surface and the centre, share meeting."""
+    surface, centre = rows[0], rows[-1]
+    lines = [f"{title or 'case'}: {grade} chemistry range, {samples} heats (seed {seed}), one batch",
+             f"{'':<10}{'HRC min':>9}{'median':>9}{'max':>9}",
+             *(band_line(label, row) for label, row in (("surface", surface), ("centre", centre)))]
+    if any(not math.isfinite(r[f"hrc_{k}"]) for r in (surface, centre) for k in ("min", "median", "max")):
+        lines.append("HV: below HRC 20, where the Rockwell C scale ends (ASTM E140)")
+    if share is not None:
+        lines.append(f"share of heats meeting '{requirement}': {100 * share:.1f} %")
+    lines.append(wrote(files))
+    return "\n".join(lines)
+
+
+def sheet_text(title: str | None, keys: dict, files: list) -> str:
+    """The `sheet` summary: the key numbers of the sheet and whether the requirement is met."""
+    lines = [f"{title or 'case'}: hardening sheet",
+             f"effective depth {keys['effective_depth_mm']:g} mm to {keys['limit_hrc']:g} HRC; centre martensite "
+             f"{keys['centre_martensite_pct']:g} %; retained austenite up to {keys['max_retained_austenite_pct']:g} %"]
+    if keys["requirement"]:
+        lines.append(("MET: " if keys["meets_requirement"] else "NOT MET: ") + keys["requirement"])
+    lines.append(wrote(files))
+    return "\n".join(lines)
+
+
+def jominy_text(summary: dict, files: list) -> str:
+    """The `jominy` summary: steel, test, DI, readings at the usual distances, band check."""
+    s = summary
+    steel = s["steel"]
+    chem = chemistry_text(steel["composition_wt_pct"])
+    di = s["di"]
+    lines = [f"quenchwise {__version__}  |  {s['title'] or 'end-quench test'}",
+             f"steel   {steel['grade'] or 'custom'} ({chem} wt%), grain size {steel['grain_size']:g}, "
+             f"austenitized at {steel['austenitize_c']:g} C",
+             f"test    {s['test']['specimen']}; {s['test']['model']} model, jet peak h {s['test']['jet_htc_w_m2k']:g} W/m2K; "
+             f"{s['test']['time_s']:g} s, {s['test']['steps']} steps",
+             f"DI      ASTM A255 {di['a255']['in']:.2f} in ({di['a255']['mm']:.0f} mm)"
+             + (f"; simulated {di['physics']['in']:.2f} in ({di['physics']['mm']:.0f} mm), ratio "
+                f"{di['physics_over_a255']:.2f}" if di.get("physics") else ""),
+             "",
+             f"{'1/16 in':>8}{'mm':>8}{'HRC':>7}{'HV':>7}{'C/s at 700 C':>14}{'martensite %':>14}"]
+    for r in s["readings"]:
+        if r["sixteenths"] <= 16 or r["sixteenths"] % 4 == 0:
+            lines.append(f"{r['sixteenths']:>8}{r['distance_mm']:>8.1f}{fmt(r['hrc']):>7}{fmt(r['hv'], '{:.0f}'):>7}"
+                         f"{fmt(r['cooling_rate_700_c_s'], '{:.3g}'):>14}{fmt(r['martensite_pct']):>14}")
+    if "band" in s:
+        b = s["band"]
+        lines.append(f"band    {b['inside']} of {b['of']} band rows inside: "
+                     + ", ".join(f"{r['distance_mm']:g} mm {fmt(r['hrc'])} HRC in [{fmt(r['min_hrc'], '{:g}')}, "
+                                 f"{fmt(r['max_hrc'], '{:g}')}]{'' if r['inside'] else ' OUT'}" for r in b["rows"]))
+    for w in s["warnings"]:
+        lines.append(f"warning {w}")
+    if files:
+        lines.append(wrote(files))
+    return "\n".join(lines)
+
+
+def diagram_text(title: str | None, summary: dict, files: list) -> str:
+    """The `diagram` summary: steel, levels, noses and bay (TTT) or critical rates and paths (CCT)."""
+    s = summary
+    steel = s["steel"]
+    chem = chemistry_text(steel["composition_wt_pct"])
+    levels = ", ".join(f"{k} {v:.0f} C" for k, v in s["levels_c"].items())
+    lines = [f"{title or 'case'}: {s['kind'].upper()} diagram, kinetics {s['model']}",
+             f"steel   {steel['grade'] or 'custom'} ({chem} wt%), austenitized {s['austenitize_c']:g} C, "
+             f"{s['austenite_carbon_wt_pct']:.2f} %C in austenite, grain size {s['grain_size']:g}",
+             f"levels  {levels}  ({steel['critical_temperatures']})"]
+    if s["kind"] == "ttt":
+        noses = "; ".join(f"{p} {n['time_s']:.3g} s at {n['temperature_c']:.0f} C"
+                          for p, n in s["noses"].items() if n is not None)
+        lines.append(f"noses   {noses or 'none within 11 days'}")
+        bay = s["bay"]
+        lines.append("bay     " + (f"{bay['time_s']:.3g} s at {bay['temperature_c']:.0f} C (longest start between the "
+                                   "upper and the bainite nose)" if bay else "none (no local maximum of the start "
+                                                                               "between the noses)"))
+    else:
+        for family, label in (("constant_rate", "constant rates"), ("newtonian", "Newtonian, rate at 700 C")):
+            c = s["critical_rates_k_s"][family]
+            lines.append(f"critical ({label}): " + "; ".join(
+                f"{k.replace('_', ' ')} {'-' if v is None else f'{v:.3g} K/s'}" for k, v in c.items()))
+        lines.append(f"{'path':<14}{'K/s at 700':>11}{'F %':>6}{'C %':>6}{'P %':>6}{'B %':>6}{'M %':>6}{'A %':>6}"
+                     f"{'HV':>7}{'HRC':>6}")
+        for p in s["paths"]:
+            pct = p["final_pct"]
+            lines.append(f"{p['label']:<14}{p['rate_700_c_s']:>11.3g}" + "".join(
+                f"{pct.get(k, 0.0):>6.0f}" for k in ("ferrite", "cementite", "pearlite", "bainite", "martensite",
+                                                     "austenite"))
+                + f"{fmt(p['hv'], '{:.0f}'):>7}{fmt(p['hrc'], '{:.0f}'):>6}")
+    for w in s["warnings"]:
+        lines.append(f"warning {w}")
+    lines.append(wrote(files))
+    return "\n".join(lines)
+
+
+def quenchant_list_text(rows: list[dict], probe_note: str, severity_definition: str) -> str:
+    """The `quenchants` table: bath, agitation, flash point, probe figures, equivalent H."""
+    lines = [f"{'name':<30}{'bath C':>7}  {'agitation':<9}{'flash C':>8}  {'max K/s':>7}{'at C':>6}"
+             f"{'@300':>6}{'t600':>6}{'t400':>6}{'t200':>6}{'H 1/in':>8}  kind"]
+    for r in rows:
+        p = r["probe"]
+        lines.append(f"{r['name']:<30}{r['bath_c']:>7g}  {r['agitation'] or '-':<9}"
+                     f"{fmt(r['flash_point_c'], '{:.0f}'):>8}  {fmt(p['max_rate_k_s'], '{:.0f}'):>7}"
+                     f"{fmt(p['t_max_rate_c'], '{:.0f}'):>6}{fmt(p['rate_300_k_s'], '{:.0f}'):>6}"
+                     f"{fmt(p['time_600_s'], '{:.1f}'):>6}{fmt(p['time_400_s'], '{:.1f}'):>6}"
+                     f"{fmt(p['time_200_s'], '{:.0f}'):>6}{fmt(r['equivalent_h_per_inch'], '{:.2f}'):>8}  {r['kind']}")
+    lines += [probe_note + ".",
+              f"H: equivalent Grossmann severity, derived from the curve: {severity_definition}.",
+              "Liquid curves: presets of the three-stage model set to published probe figures (not measured "
+              "data; sources in quenchant_data/probe_targets.csv); a case can ask for any bath, flow and "
+              "concentration with [quench] kind / agitation / concentration_pct. Fit your own bath with "
+              "`quenchwise probe`. Flash points are illustrative: use your oil's data sheet."]
+    return "\n".join(lines)
+
+
+def quenchant_text(q, row: dict, note: str, severity_definition: str, files: list | None) -> str:
+    """One quenchant: kind, bath, probe figures, equivalent H, source; its table when nothing was
+    written (files None), else the files."""
+    p = row["probe"]
+    lines = [f"{q.name}" + (f": {q.description}" if q.description else ""),
+             f"kind {q.kind}, bath {q.bath_c:g} C, agitation {q.agitation or '-'}, flash point "
+             f"{fmt(q.flash_point_c, '{:.0f} C')}" + (f", emissivity {q.emissivity:g} (radiation added)" if q.emissivity else ""),
+             f"probe   max {fmt(p['max_rate_k_s'], '{:.0f} K/s')} at {fmt(p['t_max_rate_c'], '{:.0f} C')}, "
+             f"{fmt(p['rate_300_k_s'], '{:.1f} K/s')} at 300 C; to 600 / 400 / 200 C in "
+             f"{fmt(p['time_600_s'], '{:.1f}')} / {fmt(p['time_400_s'], '{:.1f}')} / {fmt(p['time_200_s'], '{:.1f}')} s"
+             " (ISO 9950 type probe, 1-D model)",
+             f"equivalent H {fmt(row['equivalent_h_per_inch'], '{:.2f} 1/in')} "
+             f"(h {fmt(row['equivalent_htc_w_m2k'], '{:.0f} W/m2K')}; {severity_definition})" + (f"; {note}" if note else ""),
+             f"source  {q.source or 'not given'}"]
+    if files is None:
+        lines += ["surface_c  htc_w_m2k"] + [f"{t:>9g}  {h:>9g}" for t, h in zip(q.surface_c, q.htc_w_m2k)]
+    else:
+        lines.append(wrote(files))
+    return "\n".join(lines)
+
+
+def probe_fit_text(q, fit, record, curve, bath_c: float, summary: dict, out, files: list) -> str:
+    """The `probe` summary: method, refit error, the fitted curve and how to use it, warnings."""
+    lines = [f"probe fit {q.name}: {record.time_s.size} samples from {curve}, bath {bath_c:g} C",
+             f"method  Beck's sequential function specification on a 1-D alloy 600 cylinder (12.5 mm), "
+             f"{fit.future_steps} future steps of {fit.dt_s:.4g} s" + (f" (noise {fit.noise_k:.2f} K)" if fit.noise_k == fit.noise_k else "")
+             + (f"; end faces corrected (up to {fit.end_correction_k:.1f} K)" if fit.end_correction_k else ""),
+             f"refit   RMS {fit.rms_k:.2f} K, max {fit.max_k:.2f} K (measured centre vs the fitted curve run forward)",
+             f"curve   surface {q.surface_c[0]:.0f}-{q.surface_c[-1]:.0f} C (held constant beyond), peak h "
+             f"{q.htc_w_m2k.max():.0f} W/m2K at {q.surface_c[int(q.htc_w_m2k.argmax())]:.0f} C; equivalent H "
+             f"{fmt(summary['equivalent_h_per_inch'], '{:.2f} 1/in')}",
+             f"use     [quench] medium = \"{out / 'quenchant.csv'}\"",
+             wrote(files)] + [f"warning {w}" for w in fit.warnings]
+    return "\n".join(line for line in lines if line)
+
+
+def steels_text(table: dict) -> str:
+    """The `steels` list: grade, EN name, family, nominal chemistry, austenitizing temperature."""
+    lines = [f"{'grade':<8}{'EN':<10}{'family':<30}{'C':>6}{'Mn':>6}{'Si':>6}{'Ni':>6}{'Cr':>6}{'Mo':>6}{'V':>6}{'aust C':>8}"]
+    for g in table.values():
+        n = g.nominal
+        lines.append(f"{g.name:<8}{g.en or '-':<10}{g.family:<30}" + "".join(f"{n.get(e, 0):>6.2f}" for e in ("c", "mn", "si", "ni", "cr", "mo", "v"))
+                     + f"{g.austenitize_c:>8.0f}")
+    lines.append("Nominal chemistry in wt% (midpoints of the specification ranges, recalled from SAE/EN standards: check "
+                 "against the current standard and the mill certificate). A grade may be given by the EN name listed "
+                 "here (e.g. grade = \"42CrMo4\").")
     return "\n".join(lines)

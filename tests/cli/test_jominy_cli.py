@@ -42,8 +42,14 @@ def test_jominy_writes_table_figure_and_json(jominy_run):
     assert list(rows[0])[:5] == ["distance_mm", "distance_sixteenths", "hrc", "hv", "cooling_rate_700_c_s"]
     assert len(rows) == 32 and float(rows[0]["distance_mm"]) == pytest.approx(1.5875, abs=1e-3)
     s = json.loads(r.stdout)
-    assert s["di"]["a255"]["in"] == pytest.approx(4.91, abs=0.05) and s["di"]["physics"] is None
-    assert s["band"]["of"] == 4 and s["band"]["inside"] >= 3
+    # ASTM A255 DI of a 4140 chemistry: about 4.5-5 in (DOMAIN.md section 3, memory).
+    assert 4.5 <= s["di"]["a255"]["in"] <= 5.0 and s["di"]["physics"] is None
+    # Every reading inside the 4140H band of SAE J1268 widened by 4 HRC (DOMAIN.md section 4's
+    # tolerance for that band, memory); the band file itself is the unwidened band.
+    rows = {r["distance_mm"]: r["hrc"] for r in s["band"]["rows"]}
+    assert s["band"]["of"] == 4 and len(rows) == 4
+    for (j, lo, hi), hrc in zip(((1, 53, 60), (8, 47, 57), (16, 35, 53), (32, 30, 44)), rows.values()):
+        assert lo - 4.0 <= hrc <= hi + 4.0, (j, hrc)
     assert s["test"]["model"] == "1-D axial" and "caution" in s
 
 
@@ -52,7 +58,8 @@ def test_soft_readings_are_given_in_a_valid_scale(jominy_run):
     for row in csv.DictReader((tmp / "out" / "jominy.csv").open()):
         assert row["hv"]                               # HV always
         if not row["hrc"]:
-            assert row["hrb"] or float(row["hv"]) > 240.0
+            # below HRC 20 (238 HV, ASTM E140) the Rockwell B scale applies: it must be given
+            assert row["hrb"] and float(row["hv"]) < 240.0
 
 
 @pytest.mark.parametrize("band, words", [

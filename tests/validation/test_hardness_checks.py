@@ -7,7 +7,7 @@ import pytest
 
 from quenchwise.hardness import hardness_hv, hrb_from_hv, hrc_from_hv, hv_from_hrc
 from quenchwise.hardness.conversion import hv_from_hb
-from quenchwise.hardness.phases import RETAINED_AUSTENITE_HV, phase_hardness_hv
+from quenchwise.hardness.phases import phase_hardness_hv
 from quenchwise.steel.grades import find_grade
 
 PLAIN = dict(mn=0.8, si=0.25)   # a plain carbon base, the kind of steel Hodge & Orehoski measured
@@ -151,17 +151,22 @@ def test_retained_austenite_and_undissolved_carbide_are_counted_as_documented():
     rate = np.array([100.0])
     hv_m = phase_hardness_hv(rate, chem)["martensite"][0]
     f = {"martensite": np.array([0.80]), "austenite": np.array([0.15]), "cementite": np.array([0.05])}
-    # Retained austenite is added by volume in both mixture rules (combine_phases_hv).
-    for rule in ("logarithmic", "linear"):
-        got = hardness_hv(f, rate, chem, undissolved_cementite=0.05, rule=rule)[0]
-        assert got == pytest.approx((0.80 * hv_m + 0.15 * RETAINED_AUSTENITE_HV) / 0.95)
+    # Retained austenite is added by volume in both mixture rules (combine_phases_hv), so with only
+    # martensite beside it the two rules agree. A through-hardened 52100-type steel with 10-20 %
+    # retained austenite reads 60-66 HRC as quenched (bearing-steel practice, common practice, no
+    # source), softer than its martensite alone.
+    got = [hardness_hv(f, rate, chem, undissolved_cementite=0.05, rule=rule)[0] for rule in ("logarithmic", "linear")]
+    assert got[0] == pytest.approx(got[1], rel=1e-9)
+    assert 60.0 <= float(hrc_from_hv(got[0])) <= 66.0 and got[0] < hv_m
 
 
 def test_conversion_anchors_of_astm_e140():
-    # ASTM E140: HRC 20 = HV 238, 30 = 302, 40 = 392, 50 = 513, 60 = 697 (memory, +/-1 HRC).
+    # ASTM E140 Table 1 rows: HRC 20 = HV 238, 30 = 302, 40 = 392, 50 = 513, 60 = 697 (memory).
+    # These are rows of the table, so the conversion must return them exactly (to the rounding of
+    # the table), both ways; between rows it interpolates.
     for hrc, hv in ((20, 238), (30, 302), (40, 392), (50, 513), (60, 697)):
-        assert float(hrc_from_hv(hv)) == pytest.approx(hrc, abs=1.0)
-        assert float(hv_from_hrc(hrc)) == pytest.approx(hv, abs=8.0)
+        assert float(hrc_from_hv(hv)) == pytest.approx(hrc, abs=0.05)
+        assert float(hv_from_hrc(hrc)) == pytest.approx(hv, abs=0.5)
 
 
 def test_no_silent_extrapolation_soft_values_go_to_hrb():

@@ -14,7 +14,6 @@ import pytest
 from quenchwise.case import parse_case
 from quenchwise.hardness import hrc_from_hv
 from quenchwise.hardness.tempering import (
-    hollomon_jaffe_parameter,
     one_hour_equivalent_c,
     tempered_hardness_hv,
 )
@@ -66,9 +65,11 @@ def test_tempering_only_softens_and_softens_more_when_hotter(tempered_4140):
 
 
 def test_hollomon_jaffe_trades_time_for_temperature():
-    # Same P, same hardness: 10 h at T equals 1 h at the 1-h equivalent (Hollomon & Jaffe 1945).
+    # Same P, same hardness (Hollomon & Jaffe 1945): ten times the time is worth about 30-50 K of
+    # temperature in the usual tempering range (common practice, no source), so 10 h at 500 C
+    # tempers like 1 h at about 530-550 C.
     t1 = one_hour_equivalent_c(500.0, 10.0)
-    assert float(hollomon_jaffe_parameter(t1, 1.0)) == pytest.approx(float(hollomon_jaffe_parameter(500.0, 10.0)))
+    assert 530.0 <= float(t1) <= 550.0
     f = {"martensite": np.array([1.0])}
     chem = dict(c=0.4, mn=0.8, si=0.25, cr=1.0, mo=0.2)
     a, _ = tempered_hardness_hv(f, np.array([50.0]), chem, 500.0, 10.0)

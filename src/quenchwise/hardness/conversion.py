@@ -7,7 +7,7 @@ a scale where they are valid (HV always is).
 
 from __future__ import annotations
 
-import csv
+from ..csvmeta import commented_csv_dicts
 from functools import lru_cache
 from importlib import resources
 
@@ -17,8 +17,7 @@ import numpy as np
 @lru_cache(maxsize=1)
 def _table() -> dict[str, np.ndarray]:
     text = (resources.files("quenchwise.hardness") / "astm_e140.csv").read_text("utf-8")
-    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    rows = list(csv.DictReader(lines))
+    rows = commented_csv_dicts(text)
     return {k: np.array([float(r[k]) if r[k] else np.nan for r in rows]) for k in ("hv", "hrc", "hb", "hrb")}
 
 
@@ -34,6 +33,18 @@ def _convert(values, src: str, dst: str):
 def hrc_from_hv(hv):
     """Rockwell C from Vickers (ASTM E140, memory); NaN outside HRC 20-68.
 
+    Covers HRC 20-68 (the table's Rockwell C range); NaN outside, never extrapolated.
+
+    Parameters
+    ----------
+    hv : float or array_like
+        Vickers hardness [HV].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Rockwell C hardness [HRC], NaN outside the table.
+
     >>> float(hrc_from_hv(513.0)), bool(np.isnan(hrc_from_hv(200.0)))
     (50.0, True)
     """
@@ -42,6 +53,18 @@ def hrc_from_hv(hv):
 
 def hv_from_hrc(hrc):
     """Vickers from Rockwell C (ASTM E140, memory); NaN outside HRC 20-68.
+
+    Covers HRC 20-68 (the table's Rockwell C range); NaN outside, never extrapolated.
+
+    Parameters
+    ----------
+    hrc : float or array_like
+        Rockwell C hardness [HRC].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Vickers hardness [HV], NaN outside the table.
 
     >>> float(hv_from_hrc(60.0))
     697.0
@@ -52,6 +75,16 @@ def hv_from_hrc(hrc):
 def hb_from_hv(hv):
     """Brinell (10 mm carbide ball, 3000 kgf) from Vickers (ASTM E140, memory); NaN outside its range.
 
+    Parameters
+    ----------
+    hv : float or array_like
+        Vickers hardness [HV].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Brinell hardness [HB], NaN outside the table.
+
     >>> bool(np.isfinite(hb_from_hv(300.0)))
     True
     """
@@ -61,6 +94,18 @@ def hb_from_hv(hv):
 def hv_from_hb(hb):
     """Vickers from Brinell (10 mm carbide ball, 3000 kgf; ASTM E140, memory); NaN outside the table.
 
+    Covers the table's Brinell range; NaN outside, never extrapolated.
+
+    Parameters
+    ----------
+    hb : float or array_like
+        Brinell hardness [HB].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Vickers hardness [HV], NaN outside the table.
+
     >>> float(hv_from_hb(226.0)), float(hv_from_hb(131.0))
     (238.0, 131.0)
     """
@@ -69,6 +114,16 @@ def hv_from_hb(hb):
 
 def hrb_from_hv(hv):
     """Rockwell B from Vickers (ASTM E140, memory); NaN above HRB 100 or below the table.
+
+    Parameters
+    ----------
+    hv : float or array_like
+        Vickers hardness [HV].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Rockwell B hardness [HRB], NaN outside the table.
 
     >>> bool(np.isnan(hrb_from_hv(500.0)))
     True

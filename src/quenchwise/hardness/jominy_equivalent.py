@@ -11,7 +11,7 @@ the specimen model is changed.
 
 from __future__ import annotations
 
-import csv
+from ..csvmeta import commented_csv_dicts
 from functools import lru_cache
 from importlib import resources
 
@@ -32,7 +32,7 @@ def endquench_rate_curve() -> tuple[np.ndarray, np.ndarray]:
     (1.587, 272.2, 50.8, 1.94)
     """
     text = (resources.files("quenchwise.hardness") / "endquench_cooling_rates.csv").read_text("utf-8")
-    rows = list(csv.DictReader(ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")))
+    rows = commented_csv_dicts(text)
     d = np.array([float(r["distance_sixteenths"]) for r in rows]) * SIXTEENTH_MM
     v = np.array([float(r["rate_c_s"]) for r in rows])
     return d, v
@@ -46,6 +46,16 @@ def equivalent_jominy_distance_mm(rate_700_c_s):
     (beyond the curve's range: no extrapolation).
     Reference: ASTM A255, end-quench cooling-rate scale (memory); the equal-rate-at-700 C
     convention (Grossmann; memory).
+
+    Parameters
+    ----------
+    rate_700_c_s : float or array_like
+        Cooling rate at 700 C [K/s].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Equivalent end-quench distance [mm], NaN beyond the curve.
 
     >>> [round(float(x), 2) for x in equivalent_jominy_distance_mm(np.array([169.4, 18.3, 10.0, 1000.0, 1.0]))]
     [3.17, 12.7, 17.83, nan, nan]
@@ -62,6 +72,19 @@ def equivalent_jominy_distance_mm(rate_700_c_s):
 
 def equivalent_jominy_sixteenths(rate_700_c_s):
     """The same as equivalent_jominy_distance_mm, in sixteenths of an inch (J number).
+
+    Same range as equivalent_jominy_distance_mm (the published end-quench curve,
+    hardness/endquench_cooling_rates.csv).
+
+    Parameters
+    ----------
+    rate_700_c_s : float or array_like
+        Cooling rate at 700 C [K/s].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Equivalent end-quench distance [1/16 in], NaN beyond the curve.
 
     >>> round(float(equivalent_jominy_sixteenths(18.3)), 2)
     8.0

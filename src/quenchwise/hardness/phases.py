@@ -70,6 +70,18 @@ def maynier_martensite_hv(rate_c_h, c, si=0.0, mn=0.0, ni=0.0, cr=0.0):
     Vr [C/h] cooling rate at 700 C; elements wt%. Valid for low-alloy steels, C up to about 0.5 %.
     Reference: Maynier, Jungmann & Dollet (1978), TMS-AIME, 518 (memory).
 
+    Parameters
+    ----------
+    rate_c_h : float or array_like
+        Cooling rate at 700 C, Vr [C/h].
+    c, si, mn, ni, cr : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Hardness of martensite [HV].
+
     >>> round(float(maynier_martensite_hv(3.6e5, 0.40, si=0.25, mn=0.85, cr=0.95)))
     655
     """
@@ -81,6 +93,21 @@ def maynier_bainite_hv(rate_c_h, c, si=0.0, mn=0.0, ni=0.0, cr=0.0, mo=0.0):
     + log10(Vr)(89 + 53C - 55Si - 22Mn - 10Ni - 20Cr - 33Mo).
 
     Reference: Maynier, Jungmann & Dollet (1978), TMS-AIME, 518 (memory).
+
+    Valid for low-alloy steels of about 0.1-0.5 %C, Mn < 2, Si < 1, Ni < 4, Cr < 3, Mo < 1, V < 0.2
+    [wt%] (Maynier et al.'s data, memory); Vr is clipped to RATE_RANGE_C_H.
+
+    Parameters
+    ----------
+    rate_c_h : float or array_like
+        Cooling rate at 700 C, Vr [C/h].
+    c, si, mn, ni, cr, mo : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Hardness of bainite [HV].
 
     >>> round(float(maynier_bainite_hv(3.6e4, 0.40, si=0.25, mn=0.85, cr=0.95, mo=0.2)))
     376
@@ -94,6 +121,21 @@ def maynier_ferrite_pearlite_hv(rate_c_h, c, si=0.0, mn=0.0, ni=0.0, cr=0.0, mo=
     + log10(Vr)(10 - 19Si + 4Ni + 8Cr + 130V).
 
     Reference: Maynier, Jungmann & Dollet (1978), TMS-AIME, 518 (memory).
+
+    Valid for low-alloy steels of about 0.1-0.5 %C, Mn < 2, Si < 1, Ni < 4, Cr < 3, Mo < 1, V < 0.2
+    [wt%] (Maynier et al.'s data, memory); Vr is clipped to RATE_RANGE_C_H.
+
+    Parameters
+    ----------
+    rate_c_h : float or array_like
+        Cooling rate at 700 C, Vr [C/h].
+    c, si, mn, ni, cr, mo, v : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Hardness of ferrite-pearlite [HV].
 
     >>> round(float(maynier_ferrite_pearlite_hv(3.6e3, 0.40, si=0.25, mn=0.85, cr=0.95, mo=0.2)))
     226
@@ -138,6 +180,16 @@ def pearlite_eutectoid_hv(rate_700_c_s):
     bainite forms instead. Valid for about 0.01-300 K/s (furnace cooling to end-quench rates).
     A quenchwise correction fitted on the recalled anchors above; not a published relation.
 
+    Parameters
+    ----------
+    rate_700_c_s : float or array_like
+        Cooling rate at 700 C [K/s].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Hardness of eutectoid pearlite [HV].
+
     >>> [round(float(x)) for x in pearlite_eutectoid_hv(np.array([0.01, 1.67, 15.0, 100.0]))]
     [195, 309, 392, 420]
     """
@@ -151,6 +203,18 @@ def pearlite_fraction_lever(c):
 
     f_P = (C - 0.02) / (0.77 - 0.02), clipped to 0-1; C [wt%] (hypereutectoid steels: 1).
     Reference: Fe-C phase diagram (eutectoid 0.77 %C, ferrite 0.02 %C; memory).
+
+    Valid for hypoeutectoid steels (0.02-0.77 %C); clipped to 0-1 outside.
+
+    Parameters
+    ----------
+    c : float or array_like
+        Carbon [wt%].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Pearlite share of a ferrite-pearlite structure [-].
 
     >>> round(float(pearlite_fraction_lever(0.40)), 3)
     0.507
@@ -167,6 +231,18 @@ def ferrite_pearlite_hv(rate_c_h, c, si=0.0, mn=0.0, ni=0.0, cr=0.0, mo=0.0, v=0
     pearlite_eutectoid_hv. A quenchwise correction (module docstring), checked against normalized
     and annealed hardness of carbon and low-alloy steels and oil-quenched 1080 bars
     (tests/validation/test_hardness_checks.py). Same validity as Maynier's relation.
+
+    Parameters
+    ----------
+    rate_c_h : float or array_like
+        Cooling rate at 700 C, Vr [C/h].
+    c, si, mn, ni, cr, mo, v : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Hardness of ferrite-pearlite [HV].
 
     >>> round(float(ferrite_pearlite_hv(15.0 * 3600, 0.80, si=0.25, mn=0.75)))   # eutectoid: the pearlite curve
     392

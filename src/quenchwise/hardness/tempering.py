@@ -44,7 +44,7 @@ martensite in carbon and low-alloy steels", Metall. Trans. A 8, 1775-1785.
 
 from __future__ import annotations
 
-import csv
+from ..csvmeta import commented_csv_dicts
 from functools import lru_cache
 from importlib import resources
 
@@ -72,6 +72,18 @@ def low_temper_drop_hrc(one_hour_c, carbon):
     austenite carbon C [wt%]. Written to match the handbook tempering response of 52100 and 1095
     (ASM Handbook Vol. 4 / Heat Treater's Guide, memory); valid about 0.25-1.1 %C, 100-250 C.
 
+    Parameters
+    ----------
+    one_hour_c : float or array_like
+        One-hour equivalent tempering temperature [C].
+    carbon : float or array_like
+        Carbon [wt%].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Drop in hardness from the as-quenched value [HRC].
+
     >>> [round(float(low_temper_drop_hrc(t, 1.0)), 2) for t in (90.0, 150.0, 166.5, 205.0, 300.0)]
     [0.0, 2.0, 2.6, 4.0, 4.0]
     >>> round(float(low_temper_drop_hrc(166.5, 0.40)), 2), float(low_temper_drop_hrc(166.5, 0.2))
@@ -89,6 +101,22 @@ def hollomon_jaffe_parameter(temperature_c, hours, constant=DEFAULT_HJ_CONSTANT)
     temperature_c [C], hours [h] (> 0), constant C [-] (about 20 for t in hours).
     Reference: Hollomon & Jaffe (1945), Trans. AIME 162, 223 (memory).
 
+    Valid for tempering of martensite from about 150 to 700 C and 0.1-100 h (memory).
+
+    Parameters
+    ----------
+    temperature_c : float or array_like
+        Tempering temperature [C].
+    hours : float or array_like
+        Time at temperature [h].
+    constant : float or array_like
+        Hollomon-Jaffe constant C [-].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        P = T [K] (C + log10 t [h]) [K].
+
     >>> round(float(hollomon_jaffe_parameter(540.0, 1.0)))
     16263
     >>> round(float(hollomon_jaffe_parameter(540.0, 10.0)))
@@ -104,6 +132,18 @@ def hollomon_jaffe_constant(carbon):
     Hollomon & Jaffe found C to fall with carbon in plain carbon steels; 0.4 %C gives about 19.
     Reference: Hollomon & Jaffe (1945), Trans. AIME 162, 223 (memory).
 
+    Valid for plain carbon and low-alloy steels of about 0.1-1.2 %C (memory).
+
+    Parameters
+    ----------
+    carbon : float or array_like
+        Carbon [wt%].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Hollomon-Jaffe constant C [-].
+
     >>> round(float(hollomon_jaffe_constant(0.40)), 2)
     18.98
     """
@@ -112,6 +152,22 @@ def hollomon_jaffe_constant(carbon):
 
 def one_hour_equivalent_c(temperature_c, hours, constant=DEFAULT_HJ_CONSTANT):
     """The 1-hour temper with the same Hollomon-Jaffe parameter: T1 = P / C - 273.15 [C].
+
+    Valid where hollomon_jaffe_parameter is (tempering of martensite, about 150-700 C, memory).
+
+    Parameters
+    ----------
+    temperature_c : float or array_like
+        Tempering temperature [C].
+    hours : float or array_like
+        Time at temperature [h].
+    constant : float or array_like
+        Hollomon-Jaffe constant C [-].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Temperature of a 1 h temper with the same parameter [C].
 
     >>> round(float(one_hour_equivalent_c(540.0, 1.0)), 6)
     540.0
@@ -124,8 +180,7 @@ def one_hour_equivalent_c(temperature_c, hours, constant=DEFAULT_HJ_CONSTANT):
 @lru_cache(maxsize=1)
 def _table() -> dict[str, np.ndarray]:
     text = (resources.files("quenchwise.hardness") / "tempering_ghp1977.csv").read_text("utf-8")
-    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    rows = list(csv.DictReader(lines))
+    rows = commented_csv_dicts(text)
     return {k: np.array([float(r[k]) for r in rows]) for k in rows[0]}
 
 
@@ -135,6 +190,18 @@ def ghp_tempered_martensite_hv(one_hour_c, c, mn=0.0, si=0.0, ni=0.0, cr=0.0, mo
     between rows and held at the end rows outside 205-650 C. Elements in wt%.
 
     Reference: Grange, Hribal & Porter (1977), Metall. Trans. A 8, 1775 (table values: memory).
+
+    Parameters
+    ----------
+    one_hour_c : float or array_like
+        One-hour equivalent tempering temperature [C].
+    c, mn, si, ni, cr, mo, v : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Hardness of tempered martensite [HV].
 
     >>> round(float(ghp_tempered_martensite_hv(540.0, 0.40, mn=0.875, si=0.25, cr=0.95, mo=0.2)))
     336

@@ -25,6 +25,16 @@ def andrews_ae1(mn=0.0, ni=0.0, si=0.0, cr=0.0, w=0.0, as_=0.0):
     Valid for low-alloy steels below about 0.6 %C (Andrews' data set).
     Reference: Andrews, K.W. (1965), J. Iron Steel Inst. 203, 721 (memory).
 
+    Parameters
+    ----------
+    mn, ni, si, cr, w, as_ : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Ae1 [C].
+
     >>> round(float(andrews_ae1(mn=0.85, si=0.25, cr=0.95)), 1)
     737.2
     """
@@ -39,6 +49,16 @@ def andrews_ae3(c, ni=0.0, si=0.0, v=0.0, mo=0.0, w=0.0):
     Valid for hypoeutectoid low-alloy steels (C below about 0.6 %).
     Reference: Andrews, K.W. (1965), J. Iron Steel Inst. 203, 721 (memory).
 
+    Parameters
+    ----------
+    c, ni, si, v, mo, w : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Ae3 [C].
+
     >>> round(float(andrews_ae3(0.40, si=0.25, mo=0.20)), 1)
     799.1
     """
@@ -52,6 +72,16 @@ def andrews_ms(c, mn=0.0, ni=0.0, cr=0.0, mo=0.0):
 
     Valid for C 0.11-0.6 %, low-alloy steels; used beyond that with care.
     Reference: Andrews, K.W. (1965), J. Iron Steel Inst. 203, 721 (memory).
+
+    Parameters
+    ----------
+    c, mn, ni, cr, mo : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Ms [C].
 
     >>> round(float(andrews_ms(0.40, mn=0.85, cr=0.95, mo=0.20)), 1)
     331.0
@@ -71,6 +101,18 @@ def andrews_ms_product(c, mn=0.0, ni=0.0, cr=0.0, mo=0.0):
     up to 0.6 %C (ms_andrews_joined).
     Reference: Andrews, K.W. (1965), J. Iron Steel Inst. 203, 721 (memory).
 
+    Valid for low-alloy steels of about 0.1-0.6 %C (Andrews' data set, memory).
+
+    Parameters
+    ----------
+    c, mn, ni, cr, mo : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Ms [C].
+
     >>> round(float(andrews_ms_product(0.40, mn=0.85, cr=0.95, mo=0.20)), 1)
     327.9
     >>> round(float(andrews_ms_product(0.79, mn=0.76)), 1)
@@ -89,6 +131,16 @@ def van_bohemen_ms(c, mn=0.0, si=0.0, ni=0.0, cr=0.0, mo=0.0):
     on low-alloy steels and Fe-C data up to about 2 %C (memory).
     Reference: van Bohemen, S.M.C. (2012), "Bainite and martensite start temperature calculated
     with exponential carbon dependence", Mater. Sci. Technol. 28, 487-495 (memory).
+
+    Parameters
+    ----------
+    c, mn, si, ni, cr, mo : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Ms [C].
 
     >>> round(float(van_bohemen_ms(0.79, mn=0.76, si=0.25)), 1)
     219.2
@@ -115,6 +167,16 @@ def ms_andrews_joined(c, mn=0.0, ni=0.0, cr=0.0, mo=0.0):
     continuation takes only the carbon dependence of van_bohemen_ms; the alloy terms stay
     Andrews' at 0.6 %C. Eutectoid plain carbon steel 229 C (atlases about 220 C, memory);
     1.4 %C with 0.35 Mn 122 C. A quenchwise join of two published formulas.
+
+    Parameters
+    ----------
+    c, mn, ni, cr, mo : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Ms [C].
 
     >>> round(float(ms_andrews_joined(0.40, mn=0.85, cr=0.95, mo=0.20)), 1)   # = andrews_ms_product
     327.9
@@ -144,6 +206,18 @@ def steven_haynes_bs(c, mn=0.0, ni=0.0, cr=0.0, mo=0.0):
 
     Reference: Steven, W. & Haynes, A.G. (1956), J. Iron Steel Inst. 183, 349 (memory).
 
+    Fitted on low-alloy hypoeutectoid steels (about 0.1-0.6 %C, memory); beyond that with care.
+
+    Parameters
+    ----------
+    c, mn, ni, cr, mo : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Bs [C].
+
     >>> round(float(steven_haynes_bs(0.40, mn=0.85, cr=0.95, mo=0.20)), 1)
     562.4
     """
@@ -158,6 +232,18 @@ def li_bs(c, mn=0.0, ni=0.0, cr=0.0, mo=0.0):
     Reference: Li, M.V., Niebuhr, D.V., Meekisho, L.L., Atteridge, D.G. (1998),
     Metall. Mater. Trans. B 29B, 661 (memory).
 
+    Fitted on low-alloy hypoeutectoid steels (about 0.1-0.6 %C, memory); beyond that with care.
+
+    Parameters
+    ----------
+    c, mn, ni, cr, mo : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Bs [C].
+
     >>> round(float(li_bs(0.40, mn=0.85, cr=0.95, mo=0.20)), 1)
     543.5
     """
@@ -171,6 +257,18 @@ def kirkaldy_venugopalan_bs(c, mn=0.0, si=0.0, ni=0.0, cr=0.0, mo=0.0):
 
     Reference: Kirkaldy, J.S. & Venugopalan, D. (1983), in Phase Transformations in
     Ferrous Alloys, TMS-AIME, 125 (memory).
+
+    Fitted on low-alloy hypoeutectoid steels (about 0.1-0.6 %C, memory); beyond that with care.
+
+    Parameters
+    ----------
+    c, mn, si, ni, cr, mo : float or array_like
+        Element contents [wt%], 0 where absent (floats or numpy arrays).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Bs [C].
 
     >>> round(float(kirkaldy_venugopalan_bs(0.40, mn=0.85, si=0.25, cr=0.95, mo=0.20)), 1)
     543.8
@@ -193,6 +291,16 @@ def acm_linear(c):
     the austenite with some carbide undissolved (memory); Ms then comes out low and retained
     austenite high. AusteniteState.warnings() says so for hypereutectoid alloy steels.
 
+    Parameters
+    ----------
+    c : float or array_like
+        Carbon [wt%].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Acm [C].
+
     >>> round(float(acm_linear(1.13)), 1)
     840.1
     """
@@ -202,6 +310,19 @@ def acm_linear(c):
 
 def carbon_on_acm(temperature_c):
     """Carbon (wt%) of austenite in equilibrium with cementite: the inverse of acm_linear.
+
+    Valid from 727 to 1148 C, the ends of the line (straight Fe-C Acm between the eutectoid (0.77 %C,
+    727 C) and the eutectic end (2.11 %C, 1148 C), memory).
+
+    Parameters
+    ----------
+    temperature_c : float or array_like
+        Temperature [C].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Carbon that austenite holds on the Acm line [wt%].
 
     >>> round(float(carbon_on_acm(840.1)), 3)
     1.13

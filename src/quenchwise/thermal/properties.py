@@ -128,8 +128,8 @@ class PropertyTables:
         w = weights.T
         if out is None:
             return MixedProperties(self.grid, w @ self.k, w @ self.k_slope, w @ self.cp, w @ self.cp_slope, w @ self.h)
-        for table, target in ((self.k, out.k2), (self.k_slope, out.k_slope2), (self.cp, out.cp2),
-                              (self.cp_slope, out.cp_slope2), (self.h, out.h2)):
+        for table, target in ((self.k, out.k_table), (self.k_slope, out.k_slope_table), (self.cp, out.cp_table),
+                              (self.cp_slope, out.cp_slope_table), (self.h, out.h_table)):
             np.matmul(w, table, out=target)
         return out
 
@@ -141,7 +141,8 @@ class MixedProperties:
     def __init__(self, grid, k, k_slope, cp, cp_slope, h):
         self.grid = grid
         n, m = cp.shape
-        self.k2, self.k_slope2, self.cp2, self.cp_slope2, self.h2 = k, k_slope, cp, cp_slope, h
+        # (n, m) tables, one row per node; the flat views below are what the lookups index
+        self.k_table, self.k_slope_table, self.cp_table, self.cp_slope_table, self.h_table = k, k_slope, cp, cp_slope, h
         # Flat views of the same memory (updated in place by PropertyTables.mixture(out=...)).
         self.k, self.k_slope, self.cp, self.cp_slope, self.h = (a.reshape(-1) for a in (k, k_slope, cp, cp_slope, h))
         self.cp_first, self.cp_last = cp[:, 0], cp[:, -1]

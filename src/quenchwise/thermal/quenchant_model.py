@@ -307,12 +307,12 @@ PRESETS = _presets()
 
 def probe_targets() -> list[dict]:
     """The calibration targets (quenchant_data/probe_targets.csv): preset, figure, low, high, source."""
-    import csv
     from importlib import resources
 
+    from ..csvmeta import commented_csv_dicts
+
     text = (resources.files("quenchwise.thermal") / "quenchant_data" / "probe_targets.csv").read_text("utf-8")
-    rows = [line for line in text.splitlines() if line.strip() and not line.startswith("#")]
-    return [{**r, "low": float(r["low"]), "high": float(r["high"])} for r in csv.DictReader(rows)]
+    return [{**r, "low": float(r["low"]), "high": float(r["high"])} for r in commented_csv_dicts(text)]
 
 
 #: Curves of the library that are not from this model (kept as hand-written files).
@@ -336,7 +336,7 @@ def write_presets(folder=None) -> list[str]:
     from importlib import resources
     from pathlib import Path
 
-    from .probe import probe_figures
+    from .probe_figures import probe_figures
     from .quenchants import _parse
     from .severity import equivalent_severities
 

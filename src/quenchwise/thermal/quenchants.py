@@ -30,9 +30,7 @@ when the bath comes within results.FLASH_MARGIN_K of it.
 
 from __future__ import annotations
 
-import csv
 import difflib
-import io
 import math
 import re
 from dataclasses import dataclass, field, replace
@@ -41,6 +39,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ..csvmeta import read_commented_csv
 from ..errors import InputError
 
 #: Conductivity of steel used to convert Grossmann H (1/inch) to h: H = h / (2 k) [W/(m K)].
@@ -58,6 +57,21 @@ def htc_from_grossmann(severity_per_inch, conductivity_w_mk=GROSSMANN_CONDUCTIVI
 
     Reference: Grossmann, M.A., Asimow, M., Urban, S.F. (1939), Hardenability of Alloy Steels, ASM.
 
+    Valid for H from about 0.2 (still oil) to 5 (violently agitated brine) 1/in, the range of
+    Grossmann's table (memory); any H > 0 is converted.
+
+    Parameters
+    ----------
+    severity_per_inch : float or array_like
+        Grossmann severity H [1/in].
+    conductivity_w_mk : float or array_like
+        Steel conductivity k [W/(m K)].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Heat-transfer coefficient h = 2 k H [W/(m2 K)].
+
     >>> round(float(htc_from_grossmann(1.0)), 1)
     1968.5
     """
@@ -67,6 +81,20 @@ def htc_from_grossmann(severity_per_inch, conductivity_w_mk=GROSSMANN_CONDUCTIVI
 def grossmann_from_htc(htc_w_m2k, conductivity_w_mk=GROSSMANN_CONDUCTIVITY_W_MK):
     """Grossmann severity H [1/inch] of a constant h [W/(m2 K)]: H = h / (2 k).
 
+    The inverse of htc_from_grossmann; the same range.
+
+    Parameters
+    ----------
+    htc_w_m2k : float or array_like
+        Heat-transfer coefficient h [W/(m2 K)].
+    conductivity_w_mk : float or array_like
+        Steel conductivity k [W/(m K)].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Grossmann severity H = h / (2 k) [1/in].
+
     >>> round(float(grossmann_from_htc(1968.5)), 3)
     1.0
     """
@@ -75,6 +103,23 @@ def grossmann_from_htc(htc_w_m2k, conductivity_w_mk=GROSSMANN_CONDUCTIVITY_W_MK)
 
 def radiation_htc(surface_c, ambient_c, emissivity):
     """Linearized radiation coefficient eps sigma (Ts^2 + Ta^2)(Ts + Ta) [W/(m2 K)], T in K.
+
+    Grey-body exchange with large surroundings (Stefan-Boltzmann law, any heat-transfer textbook);
+    valid where the surroundings are much larger than the part.
+
+    Parameters
+    ----------
+    surface_c : float or array_like
+        Surface temperature [C].
+    ambient_c : float or array_like
+        Temperature of the surroundings [C].
+    emissivity : float or array_like
+        Emissivity of the surface [-], 0-1.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Linearized radiation coefficient [W/(m2 K)].
 
     >>> round(float(radiation_htc(850.0, 20.0, 0.8)), 1)
     86.6
@@ -132,19 +177,7 @@ def builtin_names() -> list[str]:
 
 
 def _parse(text: str, origin: str, key: str) -> Quenchant:
-    meta: dict[str, str] = {}
-    rows: list[list[str]] = []
-    for line in text.splitlines():
-        stripped = line.strip()
-        if not stripped:
-            continue
-        if stripped.startswith("#"):
-            body = stripped.lstrip("#").strip()
-            if ":" in body:
-                k, v = body.split(":", 1)
-                meta[k.strip().lower()] = v.strip()
-            continue
-        rows.append(next(csv.reader(io.StringIO(stripped))))
+    meta, rows = read_commented_csv(text)
     allowed = "a CSV with a header row and two columns: surface temperature (C), h (W/m2K)"
     if len(rows) < 3:
         raise InputError(key, origin, allowed + ", at least two data rows")

@@ -153,16 +153,6 @@ def _invert(t_ref: np.ndarray, htc: np.ndarray, t_curve: float) -> tuple[float, 
     return float(np.exp(PchipInterpolator(x, y)(lt))), ""
 
 
-def equivalent_severity(quenchant: Quenchant) -> Severity:
-    """Equivalent Grossmann H of one curve (a batch of one curve plus the sweep)."""
-    return equivalent_severities([quenchant])[0]
-
-
-def equivalent_grossmann_h(quenchants: list[Quenchant]) -> list[float]:
-    """Equivalent Grossmann H [1/inch] of each curve, in order (nan where it cannot be computed)."""
-    return [s.grossmann_h for s in equivalent_severities(list(quenchants))]
-
-
 def grossmann_h_values(quenchants: list) -> list[float | None]:
     """Equivalent Grossmann H [1/inch] of each quenchant (None entries pass through, and None where
     no number can be given): constants exactly (H = h / 2k), built-in curves at their own bath

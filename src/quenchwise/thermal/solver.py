@@ -85,66 +85,16 @@ from scipy.linalg import solve_banded
 
 from .geometry import Section
 from .properties import DENSITY_KG_M3, ConstantOverrides, PropertyTables, group_weights
-from .quenchants import STEFAN_BOLTZMANN, Quenchant
+from .quenchants import Quenchant
+from ..errors import SolverError  # noqa: F401  (re-exported: callers catch it from here too)
+from .settings import MAX_CELL_RATIO, SolverSettings, mesh_growth  # noqa: F401
 from .stepping import close_step, step_factor
+from .surfaces import Surfaces
 
 
 #: Numerical guards checked at every step (see BatchSolver._guard).
 GUARD_TOLERANCE_K = 2.0
 FRACTION_TOLERANCE = 1e-9
-
-
-#: Largest ratio of the widest to the narrowest cell of a section. [mesh] growth is a rate per cell,
-#: so 1.08 over 420 cells would make cells 1e14 times narrower at the surface than at the centre
-#: and the matrix exactly singular; the growth is lowered to keep this ratio (at the default 40
-#: cells and 1.08 the ratio is 20, so default meshes are unchanged).
-MAX_CELL_RATIO = 100.0
-
-
-def mesh_growth(cells: int, growth: float, graded_cells: int | None = None) -> float:
-    """The growth actually used: `growth`, lowered so that growth**(graded_cells - 1) stays within
-    MAX_CELL_RATIO (graded_cells: cells in one graded run, default all of them).
-
-    >>> mesh_growth(40, 1.08)
-    1.08
-    >>> round(mesh_growth(2000, 1.08) ** 1999, 6)
-    100.0
-    """
-    n = max((cells if graded_cells is None else graded_cells) - 1, 1)
-    return min(float(growth), MAX_CELL_RATIO ** (1.0 / n))
-
-
-class SolverError(RuntimeError):
-    """The time integration could not finish a case (names the case and the time reached)."""
-
-
-@dataclass(frozen=True)
-class SolverSettings:
-    """Numerics: mesh cells per section, geometric growth of cell width away from quenched
-    surfaces, and the per-step limits of the adaptive time step.
-
-    first_step_s = 1 ms resolves the first instants at a severe surface (error at the surface of a
-    Bi = 10 section 0.1 % instead of 0.9 % with 5 ms) for about 4 more steps per case."""
-
-    cells: int = 40
-    growth: float = 1.08
-    max_temperature_step_k: float = 12.0
-    max_fraction_step: float = 0.05
-    max_relative_step: float = 0.15
-    first_step_s: float = 0.001
-    max_step_growth: float = 1.5
-    max_steps: int = 50000
-    max_time_s: float = 1.0e6
-
-    def refined(self, times: int = 1) -> "SolverSettings":
-        """The same numerics with the cells doubled and the step limits halved `times` times."""
-        f = 2 ** times
-        return SolverSettings(cells=self.cells * f, growth=self.growth ** (1.0 / f),
-                              max_temperature_step_k=self.max_temperature_step_k / f,
-                              max_fraction_step=self.max_fraction_step / f,
-                              max_relative_step=self.max_relative_step / f, first_step_s=self.first_step_s / f,
-                              max_step_growth=self.max_step_growth, max_steps=self.max_steps * f,
-                              max_time_s=self.max_time_s)
 
 
 @dataclass(frozen=True)
@@ -230,47 +180,6 @@ class _TridiagonalSolver(LinearLUSolver):
         return x
 
 
-class _Surfaces:
-    """Every quenched surface of a batch as arrays: node, area weight, bath, emissivity and the
-    h(T) tables padded to a common length (the last point repeated)."""
-
-    def __init__(self, entries):
-        # entries: (case index, node, area weight, quenchant, is_outer)
-        self.case = np.array([e[0] for e in entries], dtype=int)
-        self.node = np.array([e[1] for e in entries], dtype=int)
-        self.area = np.array([e[2] for e in entries], dtype=float)
-        self.outer = np.array([e[4] for e in entries], dtype=bool)
-        quenchants = [e[3] for e in entries]
-        self.bath = np.array([q.bath_c for q in quenchants], dtype=float)
-        self.emissivity = np.array([q.emissivity for q in quenchants], dtype=float)
-        width = max(len(q.surface_c) for q in quenchants)
-        self.table_t = np.empty((len(entries), width))
-        self.table_h = np.empty((len(entries), width))
-        for i, q in enumerate(quenchants):
-            t, h = np.asarray(q.surface_c, dtype=float), np.asarray(q.htc_w_m2k, dtype=float)
-            self.table_t[i] = np.concatenate([t, np.full(width - t.size, t[-1])])
-            self.table_h[i] = np.concatenate([h, np.full(width - h.size, h[-1])])
-        self.rows = np.arange(len(entries))
-
-    def htc(self, surface_c, rows):
-        """h of each listed surface at its surface temperature: the same as Quenchant.htc (linear
-        between table points, constant beyond the ends, plus linearized radiation)."""
-        tt, th = self.table_t[rows], self.table_h[rows]
-        x = surface_c[:, None]
-        j = np.clip((tt <= x).sum(axis=1), 1, tt.shape[1] - 1)
-        r = np.arange(rows.size)
-        x0, x1, y0, y1 = tt[r, j - 1], tt[r, j], th[r, j - 1], th[r, j]
-        span = x1 - x0
-        frac = np.clip((surface_c - x0) / np.where(span > 0, span, 1.0), 0.0, 1.0)
-        frac = np.where(span > 0, frac, 1.0)
-        h = y0 + frac * (y1 - y0)
-        eps = self.emissivity[rows]
-        if np.any(eps > 0):
-            ts, ta = surface_c + 273.15, self.bath[rows] + 273.15
-            h = h + eps * STEFAN_BOLTZMANN * (ts * ts + ta * ta) * (ts + ta)
-        return h
-
-
 class BatchSolver:
     """Solve many independent sections in one FiPy system (see the module docstring for the
     method and a Python example)."""
@@ -310,7 +219,7 @@ class BatchSolver:
                 entries.append((i, self.outer_nodes[i], fw[-1], case.outer, True))
             if case.inner is not None:
                 entries.append((i, self.inner_nodes[i], fw[0], case.inner, False))
-        self.surfaces = _Surfaces(entries)
+        self.surfaces = Surfaces(entries)
         # Per case: the row of its outer surface (for the recorded surface temperature), or -1.
         self.outer_row = np.full(len(cases), -1)
         self.outer_row[self.surfaces.case[self.surfaces.outer]] = np.flatnonzero(self.surfaces.outer)

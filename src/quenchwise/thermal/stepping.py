@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..errors import SolverError
+
 
 def step_factor(settings, largest_temperature_change, largest_fraction_change, largest_relative_change=None):
     """Factor for each case's next time step from its largest changes over the last step.
@@ -34,8 +36,6 @@ def close_step(active, hottest, end_c, steps, time_s, settings, start_hottest, s
     SolverError whose text stuck_message(index) gives. progress (if given) gets the mean share of
     the cooling done.
     """
-    from .solver import SolverError
-
     finished = active & (hottest < end_c)
     stuck = active & ~finished & ((steps >= settings.max_steps) | (time_s >= settings.max_time_s))
     if stuck.any():

@@ -89,3 +89,12 @@ def band(case: Case, samples: int = DEFAULT_SAMPLES, seed: int = 1,
     order = np.argsort(results[0].depth_mm)
     hv = np.array([final_hv(r)[order] for r in results])
     return Band(case, compositions, results, results[0].depth_mm[order], hv, hrc_from_hv(hv), seed)
+
+
+def band_rows(b: Band) -> list[dict]:
+    """One row per depth: HV and HRC minimum, median and maximum over the heats (band.csv)."""
+    q_hv, q_hrc = b.quantiles(b.hv), b.hrc_quantiles()
+    return [{"depth_mm": float(d), "hv_min": float(q_hv["min"][i]), "hv_median": float(q_hv["median"][i]),
+             "hv_max": float(q_hv["max"][i]), "hrc_min": float(q_hrc["min"][i]),
+             "hrc_median": float(q_hrc["median"][i]), "hrc_max": float(q_hrc["max"][i])}
+            for i, d in enumerate(b.depth_mm)]

@@ -31,13 +31,6 @@ def crack_risk(carbon: float, severity_h: float | None) -> str:
     return "low"
 
 
-def equivalent_severity(media: list[Quenchant]) -> list[float | None]:
-    """Equivalent Grossmann H of each medium, None where it cannot be given (thermal.severity)."""
-    from ..thermal.severity import grossmann_h_values
-
-    return grossmann_h_values(media)
-
-
 @dataclass
 class Comparison:
     case: Case
@@ -55,7 +48,9 @@ class Comparison:
 def compare(case: Case, media: list[Quenchant], progress: Callable[[float], None] | None = None) -> Comparison:
     """Simulate the case once per medium, all in one batch; one summary row per medium."""
     results = simulate([with_quenchant(case, m) for m in media], progress)
-    severity = equivalent_severity(media)
+    from ..thermal.severity import grossmann_h_values
+
+    severity = grossmann_h_values(media)     # equivalent H of each medium, None where none can be given
     rows = []
     for medium, res, h in zip(media, results, severity):
         pts = res.summary()["points"]

@@ -49,6 +49,16 @@ def hodge_orehoski_50_martensite_hrc(carbon):
 
     Reference: Hodge, J.M. & Orehoski, M.A. (1946), Trans. AIME 167, 627 (memory, +/-3 HRC).
 
+    Parameters
+    ----------
+    carbon : float or array_like
+        Carbon [wt%].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Hardness of 50 % martensite [HRC].
+
     >>> round(float(hodge_orehoski_50_martensite_hrc(0.40)), 1)
     41.8
     """

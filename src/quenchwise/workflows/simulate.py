@@ -129,13 +129,14 @@ def attach_equivalent_severity(results: list[Result]) -> None:
 
 
 def _rate_700(history) -> np.ndarray:
-    """Cooling rate at 700 C of each node from the stored history (pure conduction runs)."""
+    """Cooling rate at 700 C of each node from the stored history (pure conduction runs): over the
+    first step in which the node passes 700 C; NaN where it never does."""
     t, temp = history.time_s, history.temperature_c
     out = np.full(temp.shape[1], np.nan)
-    for j in range(temp.shape[1]):
-        col = temp[:, j]
-        k = np.flatnonzero((col[:-1] > 700.0) & (col[1:] <= 700.0))
-        if k.size:
-            i = k[0]
-            out[j] = (col[i] - col[i + 1]) / (t[i + 1] - t[i])
+    if temp.shape[0] < 2:
+        return out
+    crossed = (temp[:-1] > 700.0) & (temp[1:] <= 700.0)          # (steps, nodes)
+    has = crossed.any(axis=0)
+    i, j = np.argmax(crossed, axis=0)[has], np.flatnonzero(has)
+    out[has] = (temp[i, j] - temp[i + 1, j]) / (t[i + 1] - t[i])
     return out

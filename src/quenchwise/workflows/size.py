@@ -18,6 +18,7 @@ import numpy as np
 
 from ..case import Case, Requirement
 from ..errors import InputError
+from ..formatting import rounded
 from ..thermal.quenchants import Quenchant, builtin_names, htc_from_grossmann, load_quenchant
 from .compare import compare
 from .requirement import requirement_margin
@@ -116,18 +117,14 @@ class SizingAnswer:
         return {
             "requirement": self.requirement.describe(),
             "mildest_severity": {
-                "grossmann_h_per_inch": _r(sev.passing), "htc_w_m2k": _r(None if sev.passing is None else float(htc_from_grossmann(sev.passing)), 0),
-                "next_milder_h_per_inch": _r(sev.failing), "reachable": sev.passing is not None,
+                "grossmann_h_per_inch": rounded(sev.passing), "htc_w_m2k": rounded(None if sev.passing is None else float(htc_from_grossmann(sev.passing)), 0),
+                "next_milder_h_per_inch": rounded(sev.failing), "reachable": sev.passing is not None,
             },
             "quenchants_meeting": [q["medium"] for q in self.quenchants if q["meets_requirement"]],
             "quenchants": self.quenchants,
-            "largest_size": {"dimension": self.size_label, "largest_passing_mm": _r(self.size.passing, 2),
-                             "next_larger_failing_mm": _r(self.size.failing, 2), "case_size_mm": _r(self.case_size_mm, 2)},
+            "largest_size": {"dimension": self.size_label, "largest_passing_mm": rounded(self.size.passing, 2),
+                             "next_larger_failing_mm": rounded(self.size.failing, 2), "case_size_mm": rounded(self.case_size_mm, 2)},
         }
-
-
-def _r(v, nd=3):
-    return None if v is None else round(float(v), nd)
 
 
 def size(case: Case, requirement: Requirement | None = None, media: list[Quenchant] | None = None,
