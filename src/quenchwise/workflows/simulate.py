@@ -32,7 +32,9 @@ def _thermal_case(i: int, case: Case) -> ThermalCase:
 
 
 def simulate(cases: list[Case], progress: Callable[[float], None] | None = None) -> list[Result]:
-    """Results for every case, in order; cases with the same numerics and model share one solve."""
+    """Results for every case, in order; cases with the same numerics and model share one solve.
+    A case with a measured end-quench curve is first fitted to it (workflows.heat_fit)."""
+    cases, fits = _fit_measured(cases)
     states = [austenitize(c.composition, c.austenitize_c) for c in cases]
     groups: dict[tuple, list[int]] = {}
     for i, c in enumerate(cases):
@@ -79,8 +81,31 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
             result = Result(case=case, state=state, history=history, fractions=fractions, hv=hv,
                             hrc=hrc_from_hv(hv), cooling_rate_700_c_s=rate, ms_c=float(ms[0]) if n else np.nan)
             _add_hardness_extras(result)
+            if i in fits:
+                result.extra["measured_jominy"] = fits[i].summary()
+                result.extra.setdefault("warnings", []).extend(fits[i].warnings)
             results[i] = result
     return results  # type: ignore[return-value]
+
+
+def _fit_measured(cases: list[Case]) -> tuple[list[Case], dict]:
+    """Cases with measured_jominy replaced by their fitted steel; {index: HeatFit}. Cases of the same
+    steel and curve (compare, size) share one fit; all fits run as one end-quench batch."""
+    need = [i for i, c in enumerate(cases) if c.measured_jominy is not None]
+    if not need:
+        return cases, {}
+    from .heat_fit import fit_heats, fitted_case
+
+    def key(c):
+        return (tuple(sorted(c.composition.as_dict().items())), c.grain_size, c.austenitize_c, c.model,
+                c.martensite, c.measured_jominy.source)
+
+    unique: dict = {}
+    for i in need:
+        unique.setdefault(key(cases[i]), cases[i])
+    by_key = dict(zip(unique, fit_heats(list(unique.values()))))
+    fits = {i: by_key[key(cases[i])] for i in need}
+    return [fitted_case(c, fits[i]) if i in fits else c for i, c in enumerate(cases)], fits
 
 
 def _add_hardness_extras(result: Result) -> None:
