@@ -447,6 +447,11 @@ def sheet(
         with _Progress(not json_out, "quenching") as progress:
             result = simulate_case(case, progress)
             attach_equivalent_severity([result])
+        fit = result.extra.get("measured_jominy")
+        if fit:
+            from .text_output import heat_fit_line
+
+            refined_note = f"{refined_note} Steel fitted to the heat's end-quench curve: {heat_fit_line(fit)[8:]}.".strip()
         with _staged(out) as (staging, files):
             write_sheet(result, staging, page=page, units=u, refined=refined_note)
         keys = key_numbers(result)
@@ -458,7 +463,7 @@ def sheet(
             lines.append(("MET: " if keys["meets_requirement"] else "NOT MET: ") + keys["requirement"])
         lines.append("wrote   " + ", ".join(str(f) for f in files))
         _emit(json_out, {"title": case.title, "record": case.record, "key_numbers": keys, "depths": rows,
-                         "warnings": result.warnings(), "case_sha256": case.source_sha256,
+                         "measured_jominy": fit, "warnings": result.warnings(), "case_sha256": case.source_sha256,
                          "files": [str(f) for f in files]}, "\n".join(lines))
 
 

@@ -98,6 +98,8 @@ def run_summary_text(summary: dict, files: list, units: Units | None = None) -> 
     if "di" in s:
         lines.append(f"DI      {s['di']['a255']['in']:.2f} in ({s['di']['a255']['mm']:.0f} mm) from composition, "
                      "ASTM A255; the simulated DI: quenchwise jominy")
+    if "measured_jominy" in s:
+        lines.append(heat_fit_line(s["measured_jominy"]))
     lines.append(f"models  kinetics {s['models']['kinetics']}, martensite {s['models']['martensite']}, "
                  f"hardness {s['models']['hardness']}")
     for w in s["warnings"]:
@@ -159,3 +161,17 @@ def size_text(title: str, d: dict, medium_name: str, files: list, units: Units |
              SEVERITY_NOTE,
              "wrote   " + ", ".join(str(f) for f in files)]
     return "\n".join(lines)
+
+
+def heat_fit_line(fit: dict) -> str:
+    """One line on the heat's fitted hardenability (workflows.heat_fit summary).
+
+    >>> print(heat_fit_line({"file": "h.csv", "points_used": 16, "position": -0.96, "position_se": 0.04,
+    ...     "composition_wt_pct": {"c": 0.381, "mn": 0.755, "ni": 0.0}, "rms_hrc": 0.19, "max_abs_hrc": 0.42,
+    ...     "rms_hrc_nominal": 5.96}))
+    heat    fitted to h.csv (16 readings): position -0.96 +/- 0.04 in the grade's chemistry range (C 0.381, Mn 0.755 wt%); RMS 0.19 HRC (nominal steel 5.96), max 0.42 HRC
+    """
+    chem = ", ".join(f"{k.capitalize()} {v:g}" for k, v in fit["composition_wt_pct"].items() if v > 0)
+    return (f"heat    fitted to {fit['file']} ({fit['points_used']} readings): position {fit['position']:g} +/- "
+            f"{fit['position_se']:g} in the grade's chemistry range ({chem} wt%); RMS {fit['rms_hrc']:g} HRC "
+            f"(nominal steel {fit['rms_hrc_nominal']:g}), max {fit['max_abs_hrc']:g} HRC")
