@@ -811,6 +811,43 @@ def probe(
         _emit(json_out, summary, "\n".join(line for line in lines if line))
 
 
+@app.command("fit-tank")
+def fit_tank(
+    case_file: Path = typer.Argument(..., help="Case file (TOML) of the part, its steel and the tank's medium as best known."),
+    traverse: Path = typer.Argument(..., help="Hardness traverse CSV of a cut section: depth_mm,hrc (optional hrb column)."),
+    out: Path = typer.Option(..., "--out", "-o", help="Folder for quenchant.csv, tank_fit.csv and the figure."),
+    json_out: bool = typer.Option(False, "--json", help="Print the summary as one JSON object, nothing else."),
+    overwrite: bool = typer.Option(False, "--overwrite", help="Replace a fit already in --out."),
+) -> None:
+    """Fit the tank's effective severity (a factor on the case's h(T)) to a measured hardness
+    traverse and write it as a quenchant CSV that `run` accepts in [quench] medium."""
+    with _guard():
+        from .case import load_case
+        from .results import write_table_csv
+        from .tank_figures import tank_fit_figure
+        from .text_output import tank_fit_text
+        from .thermal.quenchants import quenchant_csv_text
+        from .thermal.severity import equivalent_severities
+        from .workflows.measured import read_traverse
+        from .workflows.tank_fit import fit_tank as run_fit
+
+        _check_out_dir(out, overwrite, markers=("quenchant.csv", "tank_fit.csv"))
+        case = load_case(case_file)
+        curve = read_traverse(traverse)
+        _activity(f"fitting the tank's severity to {traverse}")
+        fit = run_fit(case, curve)
+        [sev] = equivalent_severities([fit.quenchant])
+        with _staged(out) as (staging, files):
+            (staging / "quenchant.csv").write_text(quenchant_csv_text(fit.quenchant), "utf-8")
+            write_table_csv(staging / "tank_fit.csv", fit.rows())
+            tank_fit_figure(fit, staging)
+        summary = {**fit.summary(), "equivalent_h_per_inch": None if sev.grossmann_h != sev.grossmann_h
+                   else round(sev.grossmann_h, 3), "files": [str(f) for f in files]}
+        if json_out:
+            summary["caution"] = CAUTION
+        _emit(json_out, summary, tank_fit_text(summary, str(out / "quenchant.csv")))
+
+
 def entry() -> None:
     """The `quenchwise` console script: the typer app, with every usage error (unknown option, bad
     or missing value) as one line on stderr and exit status 2, like bad input in a case file."""

@@ -175,3 +175,26 @@ def heat_fit_line(fit: dict) -> str:
     return (f"heat    fitted to {fit['file']} ({fit['points_used']} readings): position {fit['position']:g} +/- "
             f"{fit['position_se']:g} in the grade's chemistry range ({chem} wt%); RMS {fit['rms_hrc']:g} HRC "
             f"(nominal steel {fit['rms_hrc_nominal']:g}), max {fit['max_abs_hrc']:g} HRC")
+
+
+def tank_fit_text(summary: dict, out_csv: str) -> str:
+    """The `fit-tank` summary: factor, its range, RMS before and after, what to put in the case.
+
+    >>> print(tank_fit_text({"traverse": "t.csv", "points_used": 11, "factor": 2.0, "factor_range_2se": [1.8, 2.3],
+    ...     "rms_hrc": 0.03, "max_abs_hrc": 0.04, "start_rms_hrc": 7.0, "quenchant": "q x 2",
+    ...     "vapour_blanket_collapse": "not fitted", "warnings": [], "files": ["o/quenchant.csv"]},
+    ...     "o/quenchant.csv").splitlines()[1])
+    factor  h x 2 on the case's curve (1.8-2.3 at 2 standard errors)
+    """
+    s = summary
+    lines = [f"tank fit {s['quenchant']}: {s['points_used']} readings from {s['traverse']}",
+             f"factor  h x {s['factor']:g} on the case's curve ({s['factor_range_2se'][0]:g}-{s['factor_range_2se'][1]:g} "
+             "at 2 standard errors)",
+             f"traverse RMS {s['rms_hrc']:g} HRC, max {s['max_abs_hrc']:g} HRC (the case as given: RMS {s['start_rms_hrc']:g} HRC)",
+             f"vapour blanket collapse: {s['vapour_blanket_collapse']}"]
+    if s.get("equivalent_h_per_inch") is not None:
+        lines.append(f"severity equivalent Grossmann H {s['equivalent_h_per_inch']:.2f} 1/in")
+    lines.append(f"use     [quench] medium = \"{out_csv}\"")
+    lines.append("wrote   " + ", ".join(str(f) for f in s["files"]))
+    lines += [f"warning {w}" for w in s["warnings"]]
+    return "\n".join(lines)
