@@ -395,7 +395,7 @@ def band(
             band_figure(b, staging, u)
         share = b.share_meeting()
         surface, centre = rows[0], rows[-1]
-        lines = [f"{case.title or 'case'}: {case.grade} chemistry range, {samples} heats (seed {seed}), one batch",
+        lines = [f"{case.title or 'case'}: {samples} heats (seed {seed}), one batch; sampled: {b.sampled}",
                  f"{'':<10}{'HRC min':>9}{'median':>9}{'max':>9}",
                  *(_band_line(label, row) for label, row in (("surface", surface), ("centre", centre)))]
         if any(not np.isfinite(r[f"hrc_{k}"]) for r in (surface, centre) for k in ("min", "median", "max")):
@@ -405,6 +405,7 @@ def band(
         lines.append("wrote   " + ", ".join(str(f) for f in files))
         clean = [{k: (None if isinstance(v, float) and not np.isfinite(v) else v) for k, v in r.items()} for r in rows]
         _emit(json_out, {"title": case.title, "grade": case.grade, "samples": samples, "seed": seed,
+                         "sampled": b.sampled, "measured_jominy": b.heat_fit,
                          "share_meeting_requirement": share, "profile": clean, "files": [str(f) for f in files]},
               "\n".join(lines))
 
