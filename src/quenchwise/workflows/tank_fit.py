@@ -35,7 +35,7 @@ from ..case import Case
 from ..thermal.quenchants import Quenchant
 from .measured import SCATTER_HRC, MeasuredCurve, hrc_scale
 from .requirement import final_hv
-from .simulate import simulate
+from .simulate import _fit_measured, simulate
 from .variants import with_quenchant
 
 #: Factors on h(T) simulated for the fit.
@@ -110,6 +110,8 @@ def fit_tank(case: Case, traverse: MeasuredCurve, scales=SCALES, name: str | Non
     if traverse.position_mm[-1] > thickness_mm + 1e-9:
         raise InputError("TRAVERSE", traverse.source, f"depths from 0 to {thickness_mm:g} mm (surface to centre "
                          f"of this part); the last is {traverse.position_mm[-1]:g} mm")
+    # The heat's measured end-quench curve (if any) is fitted once, not at every solve below.
+    [case], heat = _fit_measured([case])
     scales = np.asarray(scales, dtype=float)
     base = case.outer
     cases = [with_quenchant(case, scaled_quenchant(base, s)) for s in scales]
@@ -132,7 +134,7 @@ def fit_tank(case: Case, traverse: MeasuredCurve, scales=SCALES, name: str | Non
     start_hrc = _at_depths(start, traverse.position_mm)
     err = fitted - traverse.hrc
     rms_final = float(np.sqrt(np.mean(err ** 2)))
-    warnings = []
+    warnings = list(heat[0].warnings) if heat else []
     if rms_final > POOR_RMS_HRC:
         warnings.append(f"fit-tank: poor fit, RMS {rms_final:.1f} HRC (more than the test's scatter of "
                         f"{SCATTER_HRC:g} HRC): one factor on h(T) does not reproduce this traverse; check the steel "
