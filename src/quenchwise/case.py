@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from .errors import InputError
+from .measured import read_measured_jominy
 from .steel.composition import ELEMENTS, Composition
 from .steel.austenite import austenitize
 from .steel.grades import find_grade
@@ -116,7 +117,7 @@ class Case:
     source_text: str = ""
     source_name: str = ""
     record: dict = field(default_factory=dict)
-    #: [steel] measured_jominy: the heat's end-quench curve (workflows.measured.MeasuredCurve); the
+    #: [steel] measured_jominy: the heat's end-quench curve (measured.MeasuredCurve); the
     #: steel is fitted to it before a solve (workflows.heat_fit), which then sets this to None.
     measured_jominy: object = None
 
@@ -298,8 +299,6 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
     austenitize(composition, aust)  # rejects a temperature at or below Ae1 here, before any work
     measured = None
     if "measured_jominy" in s:
-        from .workflows.measured import read_measured_jominy
-
         v = s["measured_jominy"]
         if not isinstance(v, str) or not v.strip():
             raise InputError("steel.measured_jominy", v, "the path of the heat's end-quench curve CSV")

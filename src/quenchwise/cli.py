@@ -829,7 +829,7 @@ def fit_tank(
         from .text_output import tank_fit_text
         from .thermal.quenchants import quenchant_csv_text
         from .thermal.severity import equivalent_severities
-        from .workflows.measured import read_traverse
+        from .measured import read_traverse
         from .workflows.tank_fit import fit_tank as run_fit
 
         _check_out_dir(out, overwrite, markers=("quenchant.csv", "tank_fit.csv"))

@@ -14,7 +14,7 @@ CASES = Path(__file__).resolve().parents[2] / "cases"
 def test_measured_curve_narrows_the_band(tmp_path):
     """The invented heat 4711 curve (cases/) fixes the heat in the 4140 range: the band of the fitted
     heat is narrower at the centre than the band over the whole chemistry range, and it says what
-    it sampled. Coarse: 6 heats each."""
+    it sampled. Coarse: 4 heats each."""
     shutil.copy(CASES / "heat_4711_endquench.csv", tmp_path)
     text = (CASES / "pin_heat_4711.toml").read_text()
     (tmp_path / "measured.toml").write_text(text)
@@ -22,7 +22,7 @@ def test_measured_curve_narrows_the_band(tmp_path):
     spread, sampled = {}, {}
     for name in ("measured", "range"):
         res = CliRunner().invoke(app, ["band", str(tmp_path / f"{name}.toml"), "--out", str(tmp_path / name),
-                                       "--samples", "6", "--json"])
+                                       "--samples", "4", "--json"])
         assert res.exit_code == 0, res.output
         d = json.loads(res.output)
         centre = d["profile"][-1]

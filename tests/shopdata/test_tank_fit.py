@@ -10,7 +10,7 @@ from quenchwise.case import load_case
 from quenchwise.cli import app
 from quenchwise.thermal.quenchants import htc_from_grossmann, load_quenchant
 from quenchwise.workflows import simulate
-from quenchwise.workflows.measured import read_traverse
+from quenchwise.measured import read_traverse
 from quenchwise.workflows.tank_fit import _at_depths, fit_tank
 
 CASE = '[steel]\ngrade = "{grade}"\n[part]\nshape = "bar"\ndiameter_mm = 40\n[quench]\nseverity_h = {h}\n'

@@ -36,7 +36,7 @@ import numpy as np
 from ..case import Case
 from ..steel.composition import Composition
 from ..steel.grades import find_grade
-from .measured import SCATTER_HRC, SIXTEENTH_MM, MeasuredCurve, hrc_scale
+from ..measured import SCATTER_HRC, SIXTEENTH_MM, MeasuredCurve, hrc_scale
 
 #: Positions t in the chemistry range simulated for the fit (2 = twice the range's half-width).
 GRID = np.linspace(-2.0, 2.0, 9)

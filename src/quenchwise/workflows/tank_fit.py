@@ -33,7 +33,7 @@ import numpy as np
 
 from ..case import Case
 from ..thermal.quenchants import Quenchant
-from .measured import SCATTER_HRC, MeasuredCurve, hrc_scale
+from ..measured import SCATTER_HRC, MeasuredCurve, hrc_scale
 from .requirement import final_hv
 from .simulate import _fit_measured, simulate
 from .variants import with_quenchant

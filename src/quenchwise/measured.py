@@ -19,8 +19,8 @@ from pathlib import Path
 
 import numpy as np
 
-from ..errors import InputError
-from ..hardness.conversion import _convert, hrc_from_hv, hv_from_hrc
+from .errors import InputError
+from .hardness.conversion import _convert, hrc_from_hv, hv_from_hrc
 
 MIN_READINGS = 4
 #: Scatter of Rockwell C readings on one test bar / section [HRC]: about +/-1 HRC within a
