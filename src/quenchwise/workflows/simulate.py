@@ -88,6 +88,11 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
     return results  # type: ignore[return-value]
 
 
+#: Heat fits done in this process, by steel and curve: `size` solves the same case in several
+#: rounds, and each round should not fit the heat again.
+_HEAT_FITS: dict = {}
+
+
 def _fit_measured(cases: list[Case]) -> tuple[list[Case], dict]:
     """Cases with measured_jominy replaced by their fitted steel; {index: HeatFit}. Cases of the same
     steel and curve (compare, size) share one fit; all fits run as one end-quench batch."""
@@ -97,14 +102,16 @@ def _fit_measured(cases: list[Case]) -> tuple[list[Case], dict]:
     from .heat_fit import fit_heats, fitted_case
 
     def key(c):
-        return (tuple(sorted(c.composition.as_dict().items())), c.grain_size, c.austenitize_c, c.model,
-                c.martensite, c.measured_jominy.source)
+        m = c.measured_jominy
+        return (tuple(sorted(c.composition.as_dict().items())), c.grade, c.grain_size, c.austenitize_c, c.model,
+                c.martensite, m.source, m.position_mm.tobytes(), m.hrc.tobytes())
 
     unique: dict = {}
     for i in need:
-        unique.setdefault(key(cases[i]), cases[i])
-    by_key = dict(zip(unique, fit_heats(list(unique.values()))))
-    fits = {i: by_key[key(cases[i])] for i in need}
+        if key(cases[i]) not in _HEAT_FITS:
+            unique.setdefault(key(cases[i]), cases[i])
+    _HEAT_FITS.update(zip(unique, fit_heats(list(unique.values()))))
+    fits = {i: _HEAT_FITS[key(cases[i])] for i in need}
     return [fitted_case(c, fits[i]) if i in fits else c for i, c in enumerate(cases)], fits
 
 
