@@ -17,6 +17,7 @@ from pathlib import Path
 
 from .errors import InputError
 from .tomltext import toml_text
+from .measured import read_measured_jominy
 from .steel.composition import ELEMENTS, Composition
 from .steel.austenite import austenitize
 from .steel.grades import find_grade
@@ -27,7 +28,7 @@ from .units import US_KEYS, si_keys
 
 SECTIONS = {
     "title": {},
-    "steel": {"grade", "grain_size", "austenitize_c", *ELEMENTS},
+    "steel": {"grade", "grain_size", "austenitize_c", "measured_jominy", *ELEMENTS},
     "part": {"shape", "thickness_mm", "diameter_mm", "outer_diameter_mm", "inner_diameter_mm", "faces"},
     "quench": {"medium", "htc_w_m2k", "severity_h", "bath_c", "end_c", "kind", "agitation", "concentration_pct",
                "inner_medium", "inner_htc_w_m2k", "inner_severity_h", "inner_bath_c"},
@@ -118,6 +119,9 @@ class Case:
     source_text: str = ""
     source_name: str = ""
     record: dict = field(default_factory=dict)
+    #: [steel] measured_jominy: the heat's end-quench curve (measured.MeasuredCurve); the
+    #: steel is fitted to it before a solve (workflows.heat_fit), which then sets this to None.
+    measured_jominy: object = None
 
     @property
     def source_sha256(self) -> str:
@@ -295,6 +299,13 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
     grain = _number(s, "steel", "grain_size", 1.0, 14.0, default=grain)
     aust = _number(s, "steel", "austenitize_c", 600.0, 1250.0, required=aust is None, default=aust)
     austenitize(composition, aust)  # rejects a temperature at or below Ae1 here, before any work
+    measured = None
+    if "measured_jominy" in s:
+        v = s["measured_jominy"]
+        if not isinstance(v, str) or not v.strip():
+            raise InputError("steel.measured_jominy", v, "the path of the heat's end-quench curve CSV")
+        path = Path(v) if Path(v).is_absolute() else base_dir / v
+        measured = read_measured_jominy(path)
 
     section, dims = _section(data["part"])
     q = data["quench"]
@@ -359,6 +370,7 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         conductivity_w_mk=k, density_kg_m3=rho, specific_heat_j_kgk=cp, settings=settings,
         requirement=requirement, compare_media=compare_media, dimensions_mm=dims,
         source_text=source_text, source_name=source_name, record=_record(data.get("record", {})),
+        measured_jominy=measured,
     )
 
 

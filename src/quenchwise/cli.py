@@ -16,8 +16,9 @@ import typer
 
 from . import publish
 from .cautions import CAUTION
-from .cli_support import (_activity, _check_out_dir, _emit, _guard, _publish, _quench, _refined,  # noqa: F401
-                          _requirement_from_options, _run_case, _solve, _units_option, _write_csv, interrupted)
+from .cli_support import (_activity, _check_out_dir, _emit, _guard, _page, _publish, _quench, _refined,  # noqa: F401
+                          _requirement_from_options, _run_case, _sheet_note, _solve, _units_option, _write_csv,
+                          interrupted)
 from .errors import InputError
 from .version import __version__
 
@@ -207,10 +208,11 @@ def band(
         rows = band_rows(b)
         files = _publish(out, lambda staging: (_write_csv(staging / "band.csv", rows, u), band_figure(b, staging, u)))
         share = b.share_meeting()
-        text = band_text(case.title, case.grade, samples, seed, rows, share,
+        text = band_text(case.title, b.sampled, samples, seed, rows, share,
                          case.requirement.describe() if share is not None else None, files)
         clean = [{k: (None if isinstance(v, float) and not math.isfinite(v) else v) for k, v in r.items()} for r in rows]
         _emit(json_out, {"title": case.title, "grade": case.grade, "samples": samples, "seed": seed,
+                         "sampled": b.sampled, "measured_jominy": b.heat_fit,
                          "share_meeting_requirement": share, "profile": clean}, text, files)
 
 
@@ -232,17 +234,16 @@ def sheet(
         from .report import key_numbers, sheet_rows, write_sheet
         from .text_output import sheet_text
 
-        page = page.strip().lower()
-        if page not in ("a4", "letter"):
-            raise InputError("--page", page, "a4 or letter")
-        u = _units_option(units)
+        page, u = _page(page), _units_option(units)
         _check_out_dir(out, overwrite, markers=("sheet.pdf",))
         case, refined_note = _refined(load_case(case_file), fine)
         result = _quench(case, json_out, f"solving the quench of {case_file}")
-        files = _publish(out, lambda staging: write_sheet(result, staging, page=page, units=u, refined=refined_note))
+        note = _sheet_note(refined_note, result)
+        files = _publish(out, lambda staging: write_sheet(result, staging, page=page, units=u, refined=note))
         keys = key_numbers(result)
         _emit(json_out, {"title": case.title, "record": case.record, "key_numbers": keys, "depths": sheet_rows(result),
-                         "warnings": result.warnings(), "case_sha256": case.source_sha256},
+                         "measured_jominy": result.extra.get("measured_jominy"), "warnings": result.warnings(),
+                         "case_sha256": case.source_sha256},
               sheet_text(case.title, keys, files), files)
 
 
@@ -323,10 +324,9 @@ def quenchants(
     equivalent Grossmann H; or show one curve (NAME), and with --out write its table and figure."""
     with _guard():
         from .text_output import quenchant_list_text, quenchant_text
-        from .thermal.probe import cooling_curve_figures, probe_cooling
         from .thermal.quenchants import builtin_quenchants, load_quenchant, quenchant_csv_text
         from .thermal.severity import DEFINITION
-        from .workflows.probe import PROBE_NOTE, file_stem, quenchant_rows, severity_of, severity_row
+        from .workflows.probe import PROBE_NOTE, file_stem, quenchant_detail, quenchant_rows
 
         if name is None:
             if out is not None:
@@ -339,10 +339,7 @@ def quenchants(
         stem = file_stem(q.name)
         if out is not None:
             _check_out_dir(out, overwrite, markers=(f"{stem}.csv",))
-        s = severity_of(q)
-        t_probe, c_probe = probe_cooling(q)
-        figures = q.listed_probe or cooling_curve_figures(t_probe, c_probe)
-        row = severity_row(q, s, figures)
+        s, (t_probe, c_probe, figures), row = quenchant_detail(q)
         files = None
         if out is not None:
             from .quenchant_figures import quenchant_figure
@@ -374,24 +371,44 @@ def probe(
     """Fit h(T_surface) of a bath from a cooling-curve probe record (inverse conduction) and write it
     as a quenchant CSV that `run` accepts in [quench] medium."""
     with _guard():
-        from .quenchant_figures import probe_figure
+        from .quenchant_figures import write_probe_fit
         from .text_output import probe_fit_text
-        from .thermal.quenchants import quenchant_csv_text
         from .workflows.probe import fit_probe_record
 
         _check_out_dir(out, overwrite, markers=("quenchant.csv", "probe_fit.csv"))
         _activity(f"fitting the probe record {curve}")
         a = fit_probe_record(curve, bath_c, name, future_s, tc_time_constant, not no_end_correction)
 
-        def write(staging):
-            (staging / "quenchant.csv").write_text(quenchant_csv_text(a.quenchant), "utf-8")
-            (staging / "probe_fit.csv").write_text(a.fit_csv_text(), "utf-8")
-            probe_figure(a.fit, a.quenchant, staging)
-
-        files = _publish(out, write)
+        files = _publish(out, lambda staging: write_probe_fit(a, staging))
         summary = a.summary(curve, not no_end_correction)
         _emit(json_out, summary, probe_fit_text(a.quenchant, a.fit, a.record, curve, a.bath_c, summary, out, files),
               files)
+
+
+@app.command("fit-tank")
+def fit_tank(
+    case_file: Path = typer.Argument(..., help="Case file (TOML) of the part, its steel and the tank's medium as best known."),
+    traverse: Path = typer.Argument(..., help="Hardness traverse CSV of a cut section: depth_mm,hrc (optional hrb column)."),
+    out: Path = typer.Option(..., "--out", "-o", help="Folder for quenchant.csv, tank_fit.csv and the figure."),
+    json_out: bool = _json_option(),
+    overwrite: bool = _overwrite_option("a fit already in --out"),
+) -> None:
+    """Fit the tank's effective severity (a factor on the case's h(T)) to a measured hardness
+    traverse and write it as a quenchant CSV that `run` accepts in [quench] medium."""
+    with _guard():
+        from .case import load_case
+        from .measured import read_traverse
+        from .tank_figures import write_tank_fit
+        from .text_output import tank_fit_text
+        from .workflows.tank_fit import fit_tank as run_fit
+
+        _check_out_dir(out, overwrite, markers=("quenchant.csv", "tank_fit.csv"))
+        case, curve = load_case(case_file), read_traverse(traverse)
+        _activity(f"fitting the tank's severity to {traverse}")
+        fit = run_fit(case, curve)
+        files = _publish(out, lambda staging: write_tank_fit(fit, staging))
+        summary = {**fit.summary(), "files": [str(f) for f in files]}
+        _emit(json_out, summary, tank_fit_text(summary, str(out / "quenchant.csv")))
 
 
 def entry() -> None:

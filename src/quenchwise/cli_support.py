@@ -162,6 +162,24 @@ def _emit(json_out: bool, payload: dict, text: str, files: list[Path] | None = N
         typer.echo(text + "\n\n" + CAUTION)
 
 
+def _page(page: str) -> str:
+    """The --page option: a4 or letter."""
+    page = page.strip().lower()
+    if page not in ("a4", "letter"):
+        raise InputError("--page", page, "a4 or letter")
+    return page
+
+
+def _sheet_note(refined_note: str, result) -> str:
+    """The sheet's numerics note, with the heat fit when the steel was fitted to its end-quench curve."""
+    fit = result.extra.get("measured_jominy")
+    if not fit:
+        return refined_note
+    from .text_output import heat_fit_line
+
+    return f"{refined_note} Steel fitted to the heat's end-quench curve: {heat_fit_line(fit)[8:]}.".strip()
+
+
 def _refined(case, fine: bool):
     """With fine: the kinetics time step limited to 1 % of a phase per step (unless the case asks
     for finer), which removes the few-tenths-HRC wiggles the default 5 % leaves in profiles."""

@@ -379,7 +379,9 @@ def band_figure(band, out_dir: Path, units=None) -> list[Path]:
     labels.insert(0, f"min-max of {len(band.results)} heats")
     ax.legend(handles, labels, frameon=False, fontsize=7.5, loc="lower left", bbox_to_anchor=(0.0, 1.0), ncol=3)
     fig.text(0.125, 0.955, f"{band.case.title or 'case'}", fontsize=10, ha="left")
-    fig.text(0.125, 0.915, f"hardness over the {band.case.grade} chemistry range, {len(band.results)} sampled heats "
+    what = (f"hardness over the {band.case.grade} chemistry range" if band.heat_fit is None else
+            "hardness over the heat fit's remaining uncertainty (measured end-quench curve)")
+    fig.text(0.125, 0.915, f"{what}, {len(band.results)} sampled heats "
              f"(seed {band.seed})", fontsize=8.5, ha="left", color="#444444")
     _footer(fig, SHORT_CAUTION)
     return _save(fig, out_dir, "band")

@@ -125,3 +125,12 @@ def probe_figure(fit, quenchant, out_dir: Path, stem: str = "probe_fit") -> list
                        + ". Alloy properties from memory of "
                        "published data: check them against your probe's certificate.", 160))
     return _save(fig, out_dir, stem)
+
+
+def write_probe_fit(analysis, folder: Path) -> None:
+    """The probe command's outputs: quenchant.csv (for [quench] medium), probe_fit.csv and the figure."""
+    from .thermal.quenchants import quenchant_csv_text
+
+    (folder / "quenchant.csv").write_text(quenchant_csv_text(analysis.quenchant), "utf-8")
+    (folder / "probe_fit.csv").write_text(analysis.fit_csv_text(), "utf-8")
+    probe_figure(analysis.fit, analysis.quenchant, folder)

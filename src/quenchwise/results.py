@@ -138,7 +138,7 @@ class Result:
             "time_to_end_s": round(float(self.history.time_s[-1]), 3),
             "steps": self.history.steps,
             "points": rows,
-            **{k: self.extra[k] for k in ("temper", "di") if k in self.extra},
+            **{k: self.extra[k] for k in ("temper", "di", "measured_jominy") if k in self.extra},
             "warnings": self.warnings(),
         }
 

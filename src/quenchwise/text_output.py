@@ -92,6 +92,8 @@ def run_summary_text(summary: dict, files: list, units: Units | None = None) -> 
     if "di" in s:
         lines.append(f"DI      {s['di']['a255']['in']:.2f} in ({s['di']['a255']['mm']:.0f} mm) from composition, "
                      "ASTM A255; the simulated DI: quenchwise jominy")
+    if "measured_jominy" in s:
+        lines.append(heat_fit_line(s["measured_jominy"]))
     lines.append(f"models  kinetics {s['models']['kinetics']}, martensite {s['models']['martensite']}, "
                  f"hardness {s['models']['hardness']}")
     for w in s["warnings"]:
@@ -180,11 +182,12 @@ def band_line(label: str, row: dict) -> str:
     return f"{label:<10}" + "".join(f"{c:>9}" for c in cells)
 
 
-def band_text(title: str | None, grade: str, samples: int, seed: int, rows: list[dict], share: float | None,
+def band_text(title: str | None, sampled: str, samples: int, seed: int, rows: list[dict], share: float | None,
               requirement: str | None, files: list) -> str:
-    """The `band` summary: HRC min / median / max at the surface and the centre, share meeting."""
+    """The `band` summary: what was sampled, HRC min / median / max at the surface and the centre,
+    share meeting."""
     surface, centre = rows[0], rows[-1]
-    lines = [f"{title or 'case'}: {grade} chemistry range, {samples} heats (seed {seed}), one batch",
+    lines = [f"{title or 'case'}: {samples} heats (seed {seed}), one batch; sampled: {sampled}",
              f"{'':<10}{'HRC min':>9}{'median':>9}{'max':>9}",
              *(band_line(label, row) for label, row in (("surface", surface), ("centre", centre)))]
     if any(not math.isfinite(r[f"hrc_{k}"]) for r in (surface, centre) for k in ("min", "median", "max")):
@@ -341,4 +344,41 @@ def steels_text(table: dict) -> str:
     lines.append("Nominal chemistry in wt% (midpoints of the specification ranges, recalled from SAE/EN standards: check "
                  "against the current standard and the mill certificate). A grade may be given by the EN name listed "
                  "here (e.g. grade = \"42CrMo4\").")
+    return "\n".join(lines)
+
+
+def heat_fit_line(fit: dict) -> str:
+    """One line on the heat's fitted hardenability (workflows.heat_fit summary).
+
+    >>> print(heat_fit_line({"file": "h.csv", "points_used": 16, "position": -0.96, "position_se": 0.04,
+    ...     "composition_wt_pct": {"c": 0.381, "mn": 0.755, "ni": 0.0}, "rms_hrc": 0.19, "max_abs_hrc": 0.42,
+    ...     "rms_hrc_nominal": 5.96}))
+    heat    fitted to h.csv (16 readings): position -0.96 +/- 0.04 in the grade's chemistry range (C 0.381, Mn 0.755 wt%); RMS 0.19 HRC (nominal steel 5.96), max 0.42 HRC
+    """
+    chem = chemistry_text(fit["composition_wt_pct"])
+    return (f"heat    fitted to {fit['file']} ({fit['points_used']} readings): position {fit['position']:g} +/- "
+            f"{fit['position_se']:g} in the grade's chemistry range ({chem} wt%); RMS {fit['rms_hrc']:g} HRC "
+            f"(nominal steel {fit['rms_hrc_nominal']:g}), max {fit['max_abs_hrc']:g} HRC")
+
+
+def tank_fit_text(summary: dict, out_csv: str) -> str:
+    """The `fit-tank` summary: factor, its range, RMS before and after, what to put in the case.
+
+    >>> print(tank_fit_text({"traverse": "t.csv", "points_used": 11, "factor": 2.0, "factor_range_2se": [1.8, 2.3],
+    ...     "rms_hrc": 0.03, "max_abs_hrc": 0.04, "start_rms_hrc": 7.0, "quenchant": "q x 2",
+    ...     "vapour_blanket_collapse": "not fitted", "warnings": [], "files": ["o/quenchant.csv"]},
+    ...     "o/quenchant.csv").splitlines()[1])
+    factor  h x 2 on the case's curve (1.8-2.3 at 2 standard errors)
+    """
+    s = summary
+    lines = [f"tank fit {s['quenchant']}: {s['points_used']} readings from {s['traverse']}",
+             f"factor  h x {s['factor']:g} on the case's curve ({s['factor_range_2se'][0]:g}-{s['factor_range_2se'][1]:g} "
+             "at 2 standard errors)",
+             f"traverse RMS {s['rms_hrc']:g} HRC, max {s['max_abs_hrc']:g} HRC (the case as given: RMS {s['start_rms_hrc']:g} HRC)",
+             f"vapour blanket collapse: {s['vapour_blanket_collapse']}"]
+    if s.get("equivalent_h_per_inch") is not None:
+        lines.append(f"severity equivalent Grossmann H {s['equivalent_h_per_inch']:.2f} 1/in")
+    lines.append(f"use     [quench] medium = \"{out_csv}\"")
+    lines.append(wrote(s["files"]))
+    lines += [f"warning {w}" for w in s["warnings"]]
     return "\n".join(lines)

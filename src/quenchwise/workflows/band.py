@@ -1,5 +1,11 @@
 """Hardness band over a grade's chemistry range: seeded Monte Carlo sampling of the composition
-within each element's specification min/max, all samples solved as one batch."""
+within each element's specification min/max, all samples solved as one batch.
+
+With [steel] measured_jominy the heat's end-quench curve has fixed where in the range this heat
+lies (workflows.heat_fit), so the range is not sampled: what remains is the fit's own uncertainty,
+sampled as the chemistry position t drawn from a normal distribution with the fit's standard error
+(from the readings' scatter and the curve's sensitivity to t). The tank and the part's size are
+not sampled (they are the case's, as in a band without a measured curve)."""
 
 from __future__ import annotations
 
@@ -42,6 +48,9 @@ class Band:
     hv: np.ndarray          # (samples, nodes), final (tempered if the case tempers)
     hrc: np.ndarray
     seed: int
+    #: What was sampled, in words (the band's first line and --json "sampled").
+    sampled: str = ""
+    heat_fit: dict | None = None
 
     def quantiles(self, values: np.ndarray) -> dict:
         """min, median and max over the heats at each depth; NaN (no warning) where every heat is NaN."""
@@ -78,17 +87,29 @@ def band(case: Case, samples: int = DEFAULT_SAMPLES, seed: int = 1,
         raise InputError("--seed", seed, "a whole number from 0 to 2**63 - 1")
     if isinstance(samples, bool) or not isinstance(samples, (int, np.integer)) or not 2 <= samples <= 5000:
         raise InputError("--samples", samples, "a whole number from 2 to 5000")
-    if case.grade is None:
-        raise InputError("steel.grade", "(missing)", "a built-in grade with specification ranges (see `quenchwise steels`)")
-    grade = find_grade(case.grade)
-    nominal = case.composition.as_dict()
-    compositions = sample_compositions(grade.range, nominal, samples, seed)
+    fit = None
+    if case.measured_jominy is not None:
+        from .heat_fit import chemistry_at, fit_heats
+
+        [fit] = fit_heats([case])
+        ts = np.random.default_rng(seed).normal(fit.position, fit.position_se, samples)
+        compositions = [Composition(**chemistry_at(case, float(t))) for t in ts]
+        case = replace(case, measured_jominy=None)
+        sampled = (f"the fit's remaining uncertainty: chemistry position t = {fit.position:.2f} +/- "
+                   f"{fit.position_se:.2f} (normal; the measured end-quench curve fixes the heat in its range)")
+    else:
+        if case.grade is None:
+            raise InputError("steel.grade", "(missing)", "a built-in grade with specification ranges (see `quenchwise steels`)")
+        grade = find_grade(case.grade)
+        compositions = sample_compositions(grade.range, case.composition.as_dict(), samples, seed)
+        sampled = f"{case.grade} chemistry range (uniform within each element's min-max)"
     from ..hardness import hrc_from_hv
 
     results = simulate([replace(case, composition=c) for c in compositions], progress)
     order = np.argsort(results[0].depth_mm)
     hv = np.array([final_hv(r)[order] for r in results])
-    return Band(case, compositions, results, results[0].depth_mm[order], hv, hrc_from_hv(hv), seed)
+    return Band(case, compositions, results, results[0].depth_mm[order], hv, hrc_from_hv(hv), seed, sampled,
+                fit.summary() if fit is not None else None)
 
 
 def band_rows(b: Band) -> list[dict]:

@@ -25,7 +25,7 @@ from ..hardness.hardenability import METRES_PER_INCH, IdealDiameter, a255_ideal_
 from ..thermal.geometry import Section
 from ..thermal.quenchants import Quenchant
 from ..thermal.solver import SolverSettings
-from .simulate import simulate
+from .batch import simulate
 
 INFINITE_SEVERITY_HTC_W_M2K = 1.0e6
 END_C = 40.0

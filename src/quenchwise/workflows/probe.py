@@ -52,6 +52,17 @@ def severity_of(q):
     return listed_severity(q) if q.listed_grossmann_h is not None else severity.equivalent_severities([q])[0]
 
 
+def quenchant_detail(q):
+    """One curve in full: its severity, its probe cooling curve with the figures (cached ones for
+    built-ins), and its listing row."""
+    from ..thermal.probe import cooling_curve_figures, probe_cooling
+
+    s = severity_of(q)
+    t_probe, c_probe = probe_cooling(q)
+    figures = q.listed_probe or cooling_curve_figures(t_probe, c_probe)
+    return s, (t_probe, c_probe, figures), severity_row(q, s, figures)
+
+
 def quenchant_rows(media: list) -> list[dict]:
     """Rows of the `quenchants` list (built-ins list their probe figures and H, computed once in
     thermal/quenchant_model.py; others are computed here)."""
