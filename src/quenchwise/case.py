@@ -74,9 +74,19 @@ class Requirement:
     min_martensite_pct: float | None = None
     depth_mm: float | None = None
 
-    def describe(self) -> str:
+    def describe(self, units=None) -> str:
+        """In words; the depth in inches when units (a units.Units) asks for US units.
+
+        >>> Requirement(min_hrc=45, depth_mm=5.08).describe()
+        'at least 45 HRC down to 5.08 mm depth'
+        >>> from quenchwise.units import Units
+        >>> Requirement(min_hrc=45, depth_mm=5.08).describe(Units("us"))   # 1 in = 25.4 mm exactly
+        'at least 45 HRC down to 0.2 in depth'
+        """
         what = f"{self.min_hrc:g} HRC" if self.min_hrc is not None else f"{self.min_martensite_pct:g} % martensite"
-        where = "at the centre" if self.depth_mm is None else f"down to {self.depth_mm:g} mm depth"
+        depth = None if self.depth_mm is None else (
+            f"{units.length(self.depth_mm):.3g} in" if units is not None and units.us else f"{self.depth_mm:g} mm")
+        where = "at the centre" if depth is None else f"down to {depth} depth"
         return f"at least {what} {where}"
 
 

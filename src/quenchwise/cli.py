@@ -143,7 +143,7 @@ def compare(
                                                compare_figures(result, staging, u)))
         best = result.best()
         best = best["medium"] if best else None
-        text = compare_text(case.title, result.rows, case.requirement.describe() if case.requirement else None, files,
+        text = compare_text(case.title, result.rows, case.requirement.describe(u) if case.requirement else None, files,
                             best, bool(case.requirement and case.requirement.min_hrc), u)
         _emit(json_out, {"title": case.title, "rows": result.rows, "mildest_meeting": best}, text, files)
 
@@ -178,7 +178,8 @@ def size(
         files = _publish(out, lambda staging: ((staging / "sizing.json").write_text(json.dumps(payload, indent=2), "utf-8"),
                                                sizing_figure(answer, staging, u)))
         payload["severity_note"] = SEVERITY_NOTE
-        _emit(json_out, payload, size_text(case.title, payload, case.outer.name, files, u), files)
+        text = size_text(case.title, {**payload, "requirement": answer.requirement.describe(u)}, case.outer.name, files, u)
+        _emit(json_out, payload, text, files)
 
 
 @app.command()
@@ -209,7 +210,7 @@ def band(
         files = _publish(out, lambda staging: (_write_csv(staging / "band.csv", rows, u), band_figure(b, staging, u)))
         share = b.share_meeting()
         text = band_text(case.title, b.sampled, samples, seed, rows, share,
-                         case.requirement.describe() if share is not None else None, files)
+                         case.requirement.describe(u) if share is not None else None, files)
         clean = [{k: (None if isinstance(v, float) and not math.isfinite(v) else v) for k, v in r.items()} for r in rows]
         _emit(json_out, {"title": case.title, "grade": case.grade, "samples": samples, "seed": seed,
                          "sampled": b.sampled, "measured_jominy": b.heat_fit,
@@ -244,7 +245,7 @@ def sheet(
         _emit(json_out, {"title": case.title, "record": case.record, "key_numbers": keys, "depths": sheet_rows(result),
                          "measured_jominy": result.extra.get("measured_jominy"), "warnings": result.warnings(),
                          "case_sha256": case.source_sha256},
-              sheet_text(case.title, keys, files), files)
+              sheet_text(case.title, keys, files, u, case.requirement and case.requirement.describe(u)), files)
 
 
 @app.command()

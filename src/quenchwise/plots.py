@@ -207,9 +207,7 @@ def requirement_line(ax, req, scale: str, total_mm: float, colour: str = "#c77d1
     y = req.min_hrc if scale == "HRC" else float(hv_from_hrc(req.min_hrc))
     depth = total_mm if req.depth_mm is None else req.depth_mm
     x = depth if length is None else length(depth)
-    label = f"required: {req.describe()}"
-    if units is not None and units.us and req.depth_mm is not None:
-        label = label.replace(f"{req.depth_mm:g} mm", f"{units.length(req.depth_mm):.3g} in")
+    label = f"required: {req.describe(units)}"
     if wrap:
         import textwrap
 
@@ -415,7 +413,7 @@ def sizing_figure(answer, out_dir: Path, units=None) -> list[Path]:
                         Line2D([], [], color="#a4343a", lw=1.0, label="requirement just met"),
                         Line2D([], [], color="#c77d1a", lw=1.0, ls="--", label="answer")],
                loc="lower center", bbox_to_anchor=(0.5, 0.07), ncol=3, frameon=False, fontsize=7.5)
-    fig.text(0.5, 0.955, f"{answer.case.title or 'case'}: {answer.requirement.describe()}", ha="center", fontsize=9.5)
+    fig.text(0.5, 0.955, f"{answer.case.title or 'case'}: {answer.requirement.describe(units)}", ha="center", fontsize=9.5)
     _footer(fig, "A constant severity is one h for the whole quench; real quenchants differ (see the text output). "
             + SHORT_CAUTION)
     return _save(fig, out_dir, "sizing")

@@ -315,7 +315,7 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
         ("Ms", "-" if k["ms_c"] is None else T(k["ms_c"])),
     ]
     if k["requirement"]:
-        keys.append(("Requirement", ("MET: " if k["meets_requirement"] else "NOT MET: ") + k["requirement"]))
+        keys.append(("Requirement", ("MET: " if k["meets_requirement"] else "NOT MET: ") + req.describe(u)))
     kn = fig.add_axes([0.65, 0.215, 0.32, 0.215])
     kn.axis("off")
     kn.text(0.0, 1.0, "Key numbers", fontsize=9.5, color=INK, weight="bold", va="top")

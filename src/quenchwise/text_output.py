@@ -198,13 +198,16 @@ def band_text(title: str | None, sampled: str, samples: int, seed: int, rows: li
     return "\n".join(lines)
 
 
-def sheet_text(title: str | None, keys: dict, files: list) -> str:
-    """The `sheet` summary: the key numbers of the sheet and whether the requirement is met."""
+def sheet_text(title: str | None, keys: dict, files: list, units: Units | None = None,
+               requirement: str | None = None) -> str:
+    """The `sheet` summary: the key numbers of the sheet and whether the requirement is met
+    (requirement: its wording in the chosen units, default keys["requirement"])."""
+    u = units or Units("si")
     lines = [f"{title or 'case'}: hardening sheet",
-             f"effective depth {keys['effective_depth_mm']:g} mm to {keys['limit_hrc']:g} HRC; centre martensite "
+             f"effective depth {u.fmt_length(keys['effective_depth_mm'])} to {keys['limit_hrc']:g} HRC; centre martensite "
              f"{keys['centre_martensite_pct']:g} %; retained austenite up to {keys['max_retained_austenite_pct']:g} %"]
     if keys["requirement"]:
-        lines.append(("MET: " if keys["meets_requirement"] else "NOT MET: ") + keys["requirement"])
+        lines.append(("MET: " if keys["meets_requirement"] else "NOT MET: ") + (requirement or keys["requirement"]))
     lines.append(wrote(files))
     return "\n".join(lines)
 

@@ -262,3 +262,13 @@ def test_a_bad_inch_value_is_reported_on_the_key_the_user_wrote(cli, tmp_path):
     code, _, err = cli("run", bad)
     assert code == 2 and "part.diameter_in = -1" in err and "part.diameter_mm = -25.4" in err
     assert len(err.strip().splitlines()) == 1
+
+
+def test_requirement_reads_in_inches_with_us_units(cli, tmp_path):
+    """--units us: the requirement's depth in inches in the compare text (1 in = 25.4 mm exactly)."""
+    case = tmp_path / "us.toml"
+    case.write_text('[steel]\ngrade = "4140"\n[part]\nshape = "bar"\ndiameter_in = 1\n'
+                    '[quench]\nmedium = "water_20c_moderate"\n[requirement]\nmin_hrc = 45\ndepth_in = 0.25\n')
+    code, out, err = cli("compare", case, "-m", "water_20c_moderate", "--out", tmp_path / "c", "--units", "us")
+    assert code == 0, err
+    assert "at least 45 HRC down to 0.25 in depth" in out and "6.35 mm" not in out
