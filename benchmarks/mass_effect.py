@@ -2,7 +2,7 @@
 
 Runs every bar of benchmarks/data/mass_effect_bars.csv (1/2-4 in, surface / half radius /
 centre, water and oil) with the built-in presets named in the file's '# preset_water:' and
-'# preset_oil:' lines (or --water / --oil) and the default kinetics, and prints the table of
+'# preset_oil:' lines (or --water / --oil) and the default kinetics (or --model), and prints the table of
 handbook against predicted HRC and the bias (predicted - handbook) by position. The handbook
 values are recalled (memory, +/-5 HRC); see the file.
 
@@ -40,9 +40,10 @@ def read_bars(path: Path = DATA):
     return presets, bars
 
 
-def predict(bars: dict, presets: dict, model: str = "li1998") -> dict:
-    """Predicted HRC at surface, half radius and centre of every bar (one batch per run)."""
-    from quenchwise.case import parse_case
+def predict(bars: dict, presets: dict, model: str | None = None) -> dict:
+    """Predicted HRC at surface, half radius and centre of every bar (one batch per run); model None:
+    the program's default kinetics (case.DEFAULT_MODEL)."""
+    from quenchwise.case import DEFAULT_MODEL, parse_case
     from quenchwise.workflows.simulate import simulate
 
     cases, keys = [], []
@@ -56,6 +57,7 @@ def predict(bars: dict, presets: dict, model: str = "li1998") -> dict:
         data = {"title": f"{grade} {d_in:g} in {quench}", "steel": steel,
                 "part": {"shape": "bar", "diameter_mm": d_in * 25.4},
                 "quench": {"medium": medium, "end_c": max(100.0, bath + 40.0)}, "transform": {"model": model}}
+        data["transform"]["model"] = model or DEFAULT_MODEL
         cases.append(parse_case(data, source_name="mass_effect_bars.csv"))
         keys.append(key)
     out = {}
@@ -86,7 +88,7 @@ def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--water")
     ap.add_argument("--oil")
-    ap.add_argument("--model", default="li1998")
+    ap.add_argument("--model", default=None, help="kinetics model (default: the program's default)")
     ap.add_argument("--markdown", type=Path)
     args = ap.parse_args(argv)
     presets, bars = read_bars()
@@ -94,7 +96,9 @@ def main(argv=None) -> int:
                "oil": args.oil or presets.get("oil", "oil_conventional_60c_moderate")}
     predicted = predict(bars, presets, args.model)
     lines, bias = table(bars, predicted, presets)
-    lines += ["", f"Bias, predicted - handbook HRC (kinetics {args.model}):", "",
+    from quenchwise.case import DEFAULT_MODEL
+
+    lines += ["", f"Bias, predicted - handbook HRC (kinetics {args.model or DEFAULT_MODEL}):", "",
               "| bars | position | mean | RMS | n | predicted below HRC 20 (not in the mean) |",
               "| --- | --- | --- | --- | --- | --- |"]
     for (group, p), v in sorted(bias.items(), key=lambda kv: (kv[0][0], POSITIONS.index(kv[0][1]))):

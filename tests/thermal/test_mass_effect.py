@@ -46,15 +46,16 @@ def table():
 
 def test_bias_by_position_within_stated_tolerances(table):
     # Handbook values recalled to +/-5 HRC and composition taken as the grade's nominal (not the
-    # tested heat): mean bias within 8 HRC and RMS within 10 HRC at each position, over the bars
-    # the model puts on the HRC scale (>= 20). Today (default kinetics li1998, presets in the file):
-    # about +4 / +5 / +7 mean and 8 / 8 / 9 RMS, surface / half radius / centre (README table).
+    # tested heat): mean bias within 4.5 HRC and RMS within 7.5 HRC at each position, over the bars
+    # the model puts on the HRC scale (>= 20). Today (default kinetics li1998-multigrade, presets in
+    # the file): +3.2 / +1.6 / +3.3 mean and 6.2 / 4.6 / 5.8 RMS, surface / half radius / centre
+    # (README table); the published li1998 gave +4 / +5 / +7 and 8 / 8 / 9.
     bars, predicted = table
     for p in mass_effect.POSITIONS:
         d = np.array([predicted[k][p] - bars[k][p] for k in bars])
         d = d[np.isfinite(d)]
         assert d.size >= 0.75 * len(bars), p
-        assert abs(d.mean()) <= 8.0 and np.sqrt(np.mean(d * d)) <= 10.0, (p, d.mean())
+        assert abs(d.mean()) <= 4.5 and np.sqrt(np.mean(d * d)) <= 7.5, (p, d.mean())
 
 
 def test_hardness_falls_from_surface_to_centre_and_with_size(table):
