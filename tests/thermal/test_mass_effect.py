@@ -48,8 +48,8 @@ def test_bias_by_position_within_stated_tolerances(table):
     # Handbook values recalled to +/-5 HRC and composition taken as the grade's nominal (not the
     # tested heat): mean bias within 4.5 HRC and RMS within 7.5 HRC at each position, over the bars
     # the model puts on the HRC scale (>= 20). Today (default kinetics li1998-multigrade, presets in
-    # the file): +3.2 / +1.6 / +3.3 mean and 6.2 / 4.6 / 5.8 RMS, surface / half radius / centre
-    # (README table); the published li1998 gave +4 / +5 / +7 and 8 / 8 / 9.
+    # the file): +3.5 / +1.6 / +3.3 mean and 6.5 / 4.6 / 5.8 RMS, surface / half radius / centre
+    # (README table); the published li1998 gives +4.3 / +4.1 / +5.7 and 7.9 / 7.1 / 8.5.
     bars, predicted = table
     for p in mass_effect.POSITIONS:
         d = np.array([predicted[k][p] - bars[k][p] for k in bars])
@@ -98,3 +98,18 @@ def test_oil_quenched_2in_4140_is_clearly_harder_at_the_surface(model, diameter_
     # (memory). "Clearly": at least 3 HRC.
     surface, centre = _bar(diameter_mm, medium, model)
     assert surface - centre >= 3.0, (surface, centre)
+
+
+def test_a_half_inch_1045_bar_hardens_in_still_cold_water():
+    # Handbook as-quenched 1/2 in 1045 bar, water: 59 HRC at the surface (mass_effect_bars.csv,
+    # memory, +/-5 HRC). Cold water's vapour blanket is thin and short (common practice, no
+    # source): a still 20 C bath must harden this bar's surface, not leave it near 43 HRC as the
+    # first water curve (blanket to 640 C, probe above 600 C for 10.6 s) did.
+    from quenchwise.case import parse_case
+    from quenchwise.workflows.simulate import simulate
+
+    case = parse_case({"steel": {"grade": "1045"}, "part": {"shape": "bar", "diameter_mm": 12.7},
+                       "quench": {"medium": "water_20c_still"}})
+    [res] = simulate([case])
+    surface = float(res.at(res.hrc, dict(res.points())["surface"]))
+    assert surface >= 59.0 - 5.0, surface
