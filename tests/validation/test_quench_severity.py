@@ -10,9 +10,9 @@ tolerance), because the values are recalled and the table's own basis is not our
 Since the library became a model set to published probe figures (thermal/quenchant_model.py),
 H is a derived number and a secondary check (DOMAIN.md section 4: where the H table and the
 probe disagree, the probe decides). Where the derived H falls outside the widened table range the
-check is a strict xfail with the reason: the 800->500 C window of a 25 mm bar sits in the vapour
-blanket of still water (H comes out low) and, once agitation or salt breaks the blanket, in the
-boiling peak of water and brine, where h of 10-30 kW/m2K gives H far above the table (the
+check is a strict xfail with the reason: once cold water, agitation or salt breaks the vapour
+blanket early (20 C water near 760 C), the 800->500 C window of a 25 mm bar sits in the boiling
+peak of water and brine, where h of 10-30 kW/m2K gives H far above the table (the
 definition cannot resolve severities above about 1.5: the centre of a 25 mm bar is then
 conduction-limited). README "Quenchants" says so.
 """
@@ -26,8 +26,6 @@ from quenchwise.thermal import severity
 from quenchwise.thermal.quenchants import Quenchant, builtin_quenchants, htc_from_grossmann, load_quenchant
 
 # (built-in curve, low, high [1/in], source)
-_BLANKET = ("derived H below the table: the 800->500 C window of a 25 mm bar lies in still water's vapour blanket "
-            "(collapse near 640 C surface, set by the probe figures)")
 _PEAK = ("derived H far above the table: the window lies in the boiling peak once the blanket is broken; the "
          "800->500 C definition does not resolve severities above about 1.5")
 _OIL = ("derived H above the table: the probe figures of agitated oil (maximum 70-140 K/s, blanket broken near "
@@ -37,7 +35,7 @@ ASM_CHECKS = [
     pytest.param("oil_conventional_60c_moderate", 0.40, 0.50, "ASM Handbook quench severity table (memory): oil, "
                  "good agitation", marks=pytest.mark.xfail(strict=True, reason=_OIL)),
     pytest.param("water_20c_still", 0.9, 1.0, "ASM Handbook quench severity table (memory): water, no agitation",
-                 marks=pytest.mark.xfail(strict=True, reason=_BLANKET)),
+                 marks=pytest.mark.xfail(strict=True, reason=_PEAK)),
     pytest.param("water_20c_strong", 1.6, 2.0, "ASM Handbook quench severity table (memory): water, strong agitation",
                  marks=pytest.mark.xfail(strict=True, reason=_PEAK)),
     pytest.param("brine_10pct_20c_still", 2.0, 2.0, "ASM Handbook quench severity table (memory): brine, no "
