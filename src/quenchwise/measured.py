@@ -30,6 +30,18 @@ SCATTER_HRC = 2.0
 SIXTEENTH_MM = 25.4 / 16.0
 
 
+def numeric_rows(rows, key: str, path, allowed: str, scale_mm: float):
+    """The data rows of a distance-and-two-readings CSV (measured curves, end-quench bands):
+    (row, distance [mm], second, third), empty cells as None; one line, exit 2, for a row that is
+    not numbers."""
+    for row in rows:
+        cells = [c.strip() for c in row] + ["", ""]
+        try:
+            yield (row, float(cells[0]) * scale_mm, float(cells[1]) if cells[1] else None,
+                   float(cells[2]) if cells[2] else None)
+        except ValueError:
+            raise InputError(key, str(path), allowed + f"; row {row!r} is not numbers") from None
+
 def hrc_scale(hv):
     """HRC on an extended scale [HRC]: ASTM E140 within HRC 20-68, continued linearly in HV beyond
     (so softer readings still count in a fit, in HRC-sized steps).
@@ -91,14 +103,7 @@ def read_measured(path: str | Path, key: str, columns: tuple[str, ...], max_mm: 
         raise InputError(key, str(path), allowed + f"; header is {','.join(header)}")
     scale_mm = SIXTEENTH_MM if header[0] == "distance_sixteenths" else 1.0
     pos, hrc, scales = [], [], []
-    for row in rows[1:]:
-        cells = [c.strip() for c in row] + ["", ""]
-        try:
-            x = float(cells[0]) * scale_mm
-            c = float(cells[1]) if cells[1] else None
-            b = float(cells[2]) if cells[2] else None
-        except ValueError:
-            raise InputError(key, str(path), allowed + f"; row {row!r} is not numbers") from None
+    for row, x, c, b in numeric_rows(rows[1:], key, path, allowed, scale_mm):
         if (c is None) == (b is None):
             raise InputError(key, str(path), allowed + f"; row {row!r} needs one reading, hrc or hrb")
         if not (math.isfinite(x) and 0.0 <= x <= max_mm):

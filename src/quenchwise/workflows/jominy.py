@@ -35,6 +35,7 @@ from ..errors import InputError
 from ..hardness import hardness_hv, hrb_from_hv, hrc_from_hv
 from ..hardness.hardenability import IdealDiameter, a255_ideal_diameter
 from ..kinetics import MODELS, PhaseStepper, SteelNodes
+from ..measured import numeric_rows
 from ..steel import AusteniteState, austenitize
 from ..thermal.endquench import (
     SIXTEENTH_M,
@@ -257,14 +258,7 @@ def read_band(path: str | Path) -> list[BandRow]:
         raise InputError(key, str(path), allowed + f"; header is {','.join(header)}")
     scale = 1.0 if header[0] == "distance_mm" else SIXTEENTH_M * 1000.0
     out = []
-    for row in rows[1:]:
-        cells = [c.strip() for c in row] + ["", ""]
-        try:
-            d = float(cells[0]) * scale
-            lo = float(cells[1]) if cells[1] else None
-            hi = float(cells[2]) if cells[2] else None
-        except ValueError:
-            raise InputError(key, str(path), allowed + f"; row {row!r} is not numbers") from None
+    for row, d, lo, hi in numeric_rows(rows[1:], key, path, allowed, scale):
         if not (0.0 < d <= 100.0) or (lo is not None and not 0 <= lo <= 70) or (hi is not None and not 0 <= hi <= 70) \
                 or (lo is not None and hi is not None and lo > hi) or (lo is None and hi is None):
             raise InputError(key, str(path), allowed + f"; row {row!r} needs 0 < distance <= 100 mm and "
