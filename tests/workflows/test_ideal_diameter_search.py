@@ -22,7 +22,7 @@ def test_sweep_is_centred_on_the_guess_and_clipped_to_the_search_limits():
 
 
 def test_extension_goes_beyond_the_side_the_answer_lies_on():
-    d = np.geomspace(40.0, 250.0, 13)
+    d = np.geomspace(40.0, 120.0, 13)              # far enough inside the search limits
     hard = idm._Sweep(d, np.full(13, 0.9))          # every bar above 50 %: DI is larger
     more = idm._extension(hard)
     assert more[0] > d[-1] and abs(more[-1] - d[-1] * idm.EXTEND_FACTOR) < 1e-9
