@@ -45,9 +45,18 @@ def case(tmp_path):
     return load_case(p)
 
 
-def test_mildest_severity_meets_and_the_next_milder_does_not(case):
+@pytest.fixture(scope="module")
+def searches(tmp_path_factory):
+    """The case and its severity and size searches, each run on its own (shared by the tests)."""
+    p = tmp_path_factory.mktemp("pin") / "pin.toml"
+    p.write_text(CASE)
+    c = load_case(p)
+    return c, mildest_severity(c, c.requirement), largest_size(c, c.requirement)
+
+
+def test_mildest_severity_meets_and_the_next_milder_does_not(searches):
+    case, found, _ = searches
     req = case.requirement
-    found = mildest_severity(case, req)
     assert found.passing is not None and found.failing is not None and found.failing < found.passing
     # Independent solves of the two neighbouring severities (batch invariance makes them exact).
     cases = [with_quenchant(case, Quenchant.constant(float(htc_from_grossmann(h)), case.outer.bath_c))
@@ -56,12 +65,27 @@ def test_mildest_severity_meets_and_the_next_milder_does_not(case):
     assert meets(passing, req) and not meets(failing, req)
 
 
-def test_largest_size_meets_and_the_next_larger_does_not(case):
+def test_largest_size_meets_and_the_next_larger_does_not(searches):
+    case, _, found = searches
     req = case.requirement
-    found = largest_size(case, req)
     assert found.passing is not None and found.failing is not None and found.failing > found.passing
     passing, failing = simulate([with_size(case, found.passing), with_size(case, found.failing)])
     assert meets(passing, req) and not meets(failing, req)
+
+
+def test_size_in_two_batches_answers_as_the_separate_searches(searches):
+    # size() puts the three questions into two batches; a case's solution does not depend on the
+    # rest of its batch, so the brackets are those of the searches run one by one.
+    from quenchwise.workflows.size import size
+    from quenchwise.thermal.quenchants import load_quenchant
+
+    case, severity, biggest = searches
+    media = [load_quenchant("water_20c_still"), load_quenchant("oil_conventional_60c_still")]
+    together = size(case, case.requirement, media)
+    for got, alone in ((together.severity, severity), (together.size, biggest)):
+        assert (got.passing, got.failing) == pytest.approx((alone.passing, alone.failing), rel=1e-12)
+        assert got.passing_margin == pytest.approx(alone.passing_margin, abs=1e-6)
+    assert [r["medium"] for r in together.quenchants] == ["oil_conventional_60c_still", "water_20c_still"]
 
 
 def test_margin_tracks_the_requirement_kind(case):

@@ -48,6 +48,12 @@ class Comparison:
 def compare(case: Case, media: list[Quenchant], progress: Callable[[float], None] | None = None) -> Comparison:
     """Simulate the case once per medium, all in one batch; one summary row per medium."""
     results = simulate([with_quenchant(case, m) for m in media], progress)
+    return comparison_from_results(case, media, results)
+
+
+def comparison_from_results(case: Case, media: list[Quenchant], results: list) -> Comparison:
+    """The comparison of the case's results in each medium (solved by the caller, e.g. within a
+    larger batch as workflows.size does)."""
     from ..thermal.severity import grossmann_h_values
 
     severity = grossmann_h_values(media)     # equivalent H of each medium, None where none can be given
