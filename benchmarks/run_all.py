@@ -6,6 +6,7 @@
     python benchmarks/run_all.py --table benchmarks/latest.md   # and write that table to a file
     python benchmarks/run_all.py --profile       # cProfile of one 200-case batch solve
     python benchmarks/run_all.py --quick         # smoke run for CI (.ci/run): small sizes, 1 repeat
+    python benchmarks/run_all.py --only commands # every command as its own process / the bare import
 
 --quick runs every benchmark on small sizes (20 cases instead of 200, 20 heats instead of 200, one
 repeat, no targets judged): it only shows that the benchmarks still run, so they cannot rot. The
@@ -17,7 +18,8 @@ banded reference replays) and returns a list of (figure, value, unit, target or 
 Times are the best of --repeat runs (wall clock, time.perf_counter) measured side by side in one
 process, after one untimed warm-up of FiPy; the median is shown too because the machine may be
 shared. The `questions` benchmark times the chemistry band, the sizing search and the end-quench
-test against one solve of the same case.
+test against one solve of the same case. The `commands` benchmark (commands.py) times every command
+on its demo case as a separate process against the bare import of FiPy, matplotlib and h5py.
 """
 
 from __future__ import annotations
@@ -258,6 +260,15 @@ def questions(ctx, repeat):
         return rows
     jdi_t, _, _, _ = timed(lambda: jominy([case], physics_di=True), 1)
     return rows + [("(q) end-quench test with the simulated DI search: wall time", jdi_t, "s", None)]
+
+
+@benchmark("commands")
+def commands(ctx, repeat):
+    """Every command on its demo case as a separate process, as a ratio to the bare import of the
+    libraries in the same run (commands.py; --quick: 4 short commands, one round)."""
+    from commands import benchmark_rows
+
+    return benchmark_rows(repeat, bool(ctx.get("quick")))
 
 
 def machine() -> list[str]:
