@@ -33,7 +33,6 @@ from typing import Callable
 
 import fipy as fp
 import numpy as np
-from scipy.optimize import brentq
 
 from .integrator import Geometry, Integrator, rate_through
 from .properties import DENSITY_KG_M3, ConstantOverrides
@@ -184,7 +183,12 @@ def graded_widths(total_m: float, cells: int, first_m: float) -> np.ndarray:
     """
     if cells * first_m >= total_m:
         return np.full(cells, total_m / cells)
-    g = brentq(lambda q: first_m * (q ** cells - 1.0) / (q - 1.0) - total_m, 1.0 + 1e-9, 10.0)
+    # The sum first_m (q^n - 1) / (q - 1) grows with the ratio q: bisect for it (60 halvings of
+    # [1, 10] leave q exact to round-off).
+    low, high = 1.0 + 1e-12, 10.0
+    for _ in range(60):
+        g = 0.5 * (low + high)
+        low, high = (g, high) if first_m * (g ** cells - 1.0) / (g - 1.0) < total_m else (low, g)
     w = first_m * g ** np.arange(cells)
     return w * (total_m / w.sum())
 
