@@ -128,6 +128,7 @@ class GradeScore:
     j50_martensite: float = math.nan
     rate_j50: float = math.nan
     rate_j50_martensite: float = math.nan
+    history_j50: dict = field(default_factory=dict)   # cooling_figures at the 50 % martensite position
 
     @property
     def n(self):
@@ -167,7 +168,31 @@ def score_grade(grade: str, result, band, carbon: float) -> GradeScore:
         s.rate_j50 = float(result.read(result.rate_cells, [s.j50_sim * SIXTEENTH_M * 1000.0])[0])
     if math.isfinite(s.j50_martensite):
         s.rate_j50_martensite = float(result.read(result.rate_cells, [s.j50_martensite * SIXTEENTH_M * 1000.0])[0])
+        h = result.history
+        nz, nr = h.shape
+        iz = int(np.argmin(np.abs(h.z_m - s.j50_martensite * SIXTEENTH_M)))
+        s.history_j50 = cooling_figures(h.time_s, h.temperature_c.reshape(h.time_s.size, nz, nr)[:, iz, -1])
     return s
+
+
+def cooling_figures(time_s, temperature_c) -> dict:
+    """Cooling rate at 700 C [K/s] (over 690-710 C) and the times 700 -> 500 C and 500 -> 300 C [s]
+    of one falling temperature history (NaN where it does not get there).
+
+    >>> f = cooling_figures(np.array([0.0, 100.0]), np.array([800.0, 300.0]))
+    >>> round(f["rate_700"], 1), round(f["t_700_500"], 1), round(f["t_500_300"], 1)
+    (5.0, 40.0, 40.0)
+    """
+    t, temp = np.asarray(time_s, float), np.asarray(temperature_c, float)
+
+    def passing(x):
+        i = int(np.argmax(temp <= x))
+        if temp[i] > x or i == 0:
+            return math.nan
+        return float(t[i - 1] + (temp[i - 1] - x) / (temp[i - 1] - temp[i]) * (t[i] - t[i - 1]))
+
+    return {"rate_700": 20.0 / (passing(690.0) - passing(710.0)), "t_700_500": passing(500.0) - passing(700.0),
+            "t_500_300": passing(300.0) - passing(500.0)}
 
 
 def run_endquench(model: str, grades=None, settings: EndQuenchSettings = DEFAULT_SETTINGS):
@@ -439,16 +464,22 @@ def run_di(model: str, scores: dict, results: dict) -> list[dict]:
     sim = physics_ideal_diameters([results[g].case for g in names])
     diam = np.geomspace(5.0, 400.0, 40)
     rates = centre_rates(diam)
+    from quenchwise.workflows import simulate
+    from quenchwise.workflows.ideal_diameter import DI_SETTINGS, _bar_case
+    di_bars = simulate([_bar_case(results[g].case, d.mm, DI_SETTINGS) for g, d in zip(names, sim)])
     out = []
-    for g, d in zip(names, sim):
+    for g, d, bar in zip(names, sim, di_bars):
         s = scores[g]
+        ic = int(np.argmin(bar.history.radius_m))
+        centre = cooling_figures(bar.history.time_s, bar.history.temperature_c[:, ic])
         def implied(rate):
             if not math.isfinite(rate):
                 return math.nan
             return float(np.exp(np.interp(np.log(rate), np.log(rates[::-1]), np.log(diam[::-1])))) / 25.4
         out.append({"grade": g, "a255_in": a255_ideal_diameter(results[g].case.composition).inches,
                     "sim_in": d.inches, "implied_in": implied(s.rate_j50),
-                    "implied_m_in": implied(s.rate_j50_martensite)})
+                    "implied_m_in": implied(s.rate_j50_martensite), "j50_m": s.j50_martensite, "jominy": s.history_j50,
+                    "bar": centre, "bar_martensite": float(bar.at(bar.fractions["martensite"], 0.0))})
     return out
 
 
@@ -465,6 +496,15 @@ def di_markdown(rows) -> list[str]:
     a = np.array([r["sim_in"] / r["a255_in"] for r in rows])
     b = np.array([r["sim_in"] / r["implied_in"] for r in rows if math.isfinite(r["implied_in"])])
     m = np.array([r["sim_in"] / r["implied_m_in"] for r in rows if math.isfinite(r["implied_m_in"])])
+    out += ["", "Why the simulated DI exceeds the implied one: the cooling history of the two points that hold "
+            "50 % martensite (by fraction), the end-quench position and the centre of the simulated DI bar "
+            "(rate at 700 C in K/s, times 700->500 C and 500->300 C in s):", "",
+            "| grade | J50 (fraction) | end-quench: rate 700 / t 700-500 / t 500-300 | DI bar centre: rate 700 / "
+            "t 700-500 / t 500-300 | centre martensite |", "| --- | ---: | --- | --- | ---: |"]
+    fig = lambda f: " / ".join(_f(f.get(k, math.nan), "{:.3g}") for k in ("rate_700", "t_700_500", "t_500_300"))  # noqa: E731
+    for r in rows:
+        out.append(f"| {r['grade']} | {_j(r['j50_m'])} | {fig(r['jominy'])} | {fig(r['bar'])} | "
+                   f"{100 * r['bar_martensite']:.0f} % |")
     out.append(f"\nGeometric mean sim / A255 **{np.exp(np.mean(np.log(a))):.2f}**, sim / implied (hardness) "
                f"**{np.exp(np.mean(np.log(b))):.2f}** ({len(b)} grades with a J50 on the bar), sim / implied "
                f"(fraction) **{np.exp(np.mean(np.log(m))):.2f}** ({len(m)} grades).")
