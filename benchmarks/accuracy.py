@@ -278,13 +278,14 @@ def cooling_section(results: dict) -> list[str]:
 # -- (b) handbook bars ------------------------------------------------------------------------------
 #: Reading positions of the bar file and the labels of Result.points() they map to.
 BAR_POSITIONS = {"surface": "surface", "half_radius": "half radius", "centre": "centre"}
-#: Defaults where the bar file names no preset or reading depth.
-BAR_DEFAULTS = {"preset_water": "water_20c_moderate", "preset_oil": "oil_conventional_60c_moderate",
+#: Defaults where the bar file names no quenchant or reading depth. A quenchant is a built-in preset
+#: name or the quenchant model's [quench] keys, e.g. 'kind = "water", bath_c = 20, agitation = "mild"'.
+BAR_DEFAULTS = {"quench_water": "water_20c_moderate", "quench_oil": "oil_conventional_60c_moderate",
                 "surface_reading_depth_mm": "0"}
 
 
 def bar_settings(path: Path = BARS_CSV) -> dict:
-    """The file's '# key: value' lines that say how its bars were quenched and read (presets,
+    """The file's '# key: value' lines that say how its bars were quenched and read (quenchants,
     surface reading depth), over BAR_DEFAULTS."""
     out = dict(BAR_DEFAULTS)
     for ln in Path(path).read_text("utf-8").splitlines():
@@ -296,9 +297,9 @@ def bar_settings(path: Path = BARS_CSV) -> dict:
 
 
 def bar_presets(path: Path = BARS_CSV) -> dict:
-    """{"water": preset, "oil": preset} of the bar file."""
+    """{"water": quenchant, "oil": quenchant} of the bar file (preset names or model keys)."""
     s = bar_settings(path)
-    return {"water": s["preset_water"], "oil": s["preset_oil"]}
+    return {"water": s["quench_water"], "oil": s["quench_oil"]}
 
 
 def run_bars(model: str, path: Path = BARS_CSV, presets: dict | None = None,
@@ -321,7 +322,7 @@ def run_bars(model: str, path: Path = BARS_CSV, presets: dict | None = None,
     presets = presets or bar_presets(Path(path))
     depth_m = (float(bar_settings(path)["surface_reading_depth_mm"]) if surface_depth_mm is None
                else float(surface_depth_mm)) / 1000.0
-    end_c = {k: load_quenchant(v).bath_c + 20.0 for k, v in presets.items()}
+    end_c = {k: _bath_c(v) + 20.0 for k, v in presets.items()}
     rows = _rows(Path(path))
     keys, cases = {}, []
     for r in rows:
@@ -331,7 +332,7 @@ def run_bars(model: str, path: Path = BARS_CSV, presets: dict | None = None,
         chem = "\n".join(f"{el} = {float(r[el])!r}" for el in ("c", "mn", "si", "ni", "cr", "mo") if float(r[el] or 0) > 0)
         text = (f'title = "{r["grade"]} {r["quenchant"]} {float(r["diameter_in"]):g} in"\n[steel]\n{chem}\n'
                 f'austenitize_c = {float(r["austenitize_c"])}\n[part]\nshape = "bar"\n'
-                f'diameter_mm = {float(r["diameter_in"]) * 25.4}\n[quench]\nmedium = "{presets[r["quenchant"]]}"\n'
+                f'diameter_mm = {float(r["diameter_in"]) * 25.4}\n[quench]\n{_quench_keys(presets[r["quenchant"]])}\n'
                 f'end_c = {end_c[r["quenchant"]]}\n[transform]\nmodel = "{model}"\n')
         keys[k] = len(cases)
         cases.append(parse_case(tomllib.loads(text), text, "bar.toml"))
@@ -347,6 +348,26 @@ def run_bars(model: str, path: Path = BARS_CSV, presets: dict | None = None,
         out.append({**r, "sim_hrc": hrc if math.isfinite(hrc) else BELOW_SCALE_HRC,
                     "sim_rate_700_c_s": res.at(res.cooling_rate_700_c_s, radius)})
     return out
+
+
+def _quench_keys(preset: str) -> str:
+    """[quench] lines of a bar: a built-in preset name, or the quenchant model's keys written as
+    'kind = "oil_conventional", bath_c = 60, agitation = "mild"'."""
+    return preset.replace(", ", "\n") if "=" in preset else f'medium = "{preset}"'
+
+
+def _quenchant(preset: str):
+    """The Quenchant a bar file's quenchant names (built-in preset or model keys)."""
+    from quenchwise.thermal.quenchant_model import quenchant_from_case
+    from quenchwise.thermal.quenchants import load_quenchant
+    if "=" not in preset:
+        return load_quenchant(preset)
+    q = tomllib.loads(_quench_keys(preset))
+    return quenchant_from_case(q, q.get("bath_c"))
+
+
+def _bath_c(preset: str) -> float:
+    return _quenchant(preset).bath_c
 
 
 def _bar_key(r: dict) -> tuple:
@@ -388,6 +409,29 @@ def bars_markdown(rows, per_bar: bool = False) -> list[str]:
         for (g, q, d), v in bars.items():
             cells = [f"{float(v[p]['hrc']):.0f} / {v[p]['sim_hrc']:.1f}" if p in v else "" for p in BAR_POSITIONS]
             out.append(f"| {g} | {q} | {d:g} | " + " | ".join(cells) + " |")
+    return out
+
+
+#: Other baths scored beside the file's presets (sensitivity only; the score uses the file's presets).
+BAR_SENSITIVITY = ({"water": "water_20c_still", "oil": "oil_conventional_60c_still"},
+                   {"water": "water_20c_moderate", "oil": "oil_conventional_60c_moderate"},
+                   {"water": "water_20c_strong", "oil": "oil_conventional_60c_strong"})
+
+
+def bar_sensitivity_markdown(model: str, path: Path = BARS_CSV) -> list[str]:
+    """The bar scores with other presets: how much the unknown agitation of the handbook's bath moves them."""
+    out = ["How much the handbook's bath (water / oil, agitation not recalled) moves the score: the same readings "
+           "with other presets (sensitivity only).", "",
+           "| water / oil preset | equivalent H water / oil | within 3 HRC | bias surface / half radius / centre | "
+           "bias water / oil |", "| --- | --- | ---: | --- | --- |"]
+    from quenchwise.thermal.severity import equivalent_severities
+    for presets in (bar_presets(path),) + BAR_SENSITIVITY:
+        s = bar_summary(run_bars(model, path, presets))
+        g = s["groups"]
+        h = " / ".join(f"{x.grossmann_h:.2f}" for x in equivalent_severities([_quenchant(presets[k]) for k in ("water", "oil")]))
+        out.append(f"| {presets['water']} / {presets['oil']} | {h} | {s['within_3_pct']:.0f} % | "
+                   + " / ".join(f"{g[('position', p)]['bias']:+.1f}" for p in BAR_POSITIONS) + " | "
+                   + " / ".join(f"{g[('quenchant', q)]['bias']:+.1f}" for q in ("water", "oil")) + " |")
     return out
 
 
@@ -542,6 +586,8 @@ def main(argv=None) -> int:
             md += ["## End-quench specimen: cooling rate at 705 C", ""] + cooling_section(results) + [""]
     if "bars" in sections:
         md += ["## (b) Handbook as-quenched bars", ""] + bars_markdown(run_bars(a.model, Path(a.bars)), per_bar=True) + [""]
+        if not a.quick:
+            md += bar_sensitivity_markdown(a.model, Path(a.bars)) + [""]
     if "facts" in sections:
         md += ["## (c) CCT and TTT facts", ""] + facts_markdown(run_facts(a.model)) + [""]
     if "di" in sections:

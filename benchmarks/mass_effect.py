@@ -3,12 +3,13 @@ scorer (benchmarks/accuracy.py: run_bars, bar_summary, bars_markdown), so this t
 of the scorecard are the same numbers.
 
 Runs every bar of benchmarks/data/mass_effect_bars.csv (1/2-4 in, surface / half radius / centre,
-water and oil) with the presets and the surface reading depth named in the file's '# key: value'
-lines (or --water / --oil / --surface-depth-mm) and the default kinetics (or --model), and prints
+water and oil) with the quenchants and the surface reading depth named in the file's '# key: value'
+lines (or --water / --oil / --surface-depth-mm: a built-in preset name or the quenchant model's keys,
+e.g. 'kind = "water", bath_c = 20, agitation = "mild"') and the default kinetics (or --model), and prints
 handbook against simulated HRC bar by bar and the bias (simulated - handbook) by position,
 quenchant and grade. The handbook values are recalled (memory, +/-5 HRC); see the file.
 
-    PYTHONPATH=src python benchmarks/mass_effect.py [--water NAME] [--oil NAME] [--model li1998]
+    PYTHONPATH=src python benchmarks/mass_effect.py [--water Q] [--oil Q] [--model li1998]
                                                     [--surface-depth-mm 0] [--markdown out.md]
 
 A few seconds (28 bars in one batch).
@@ -42,7 +43,7 @@ def main(argv=None) -> int:
     presets = accuracy.bar_presets(args.bars)
     presets = {"water": args.water or presets["water"], "oil": args.oil or presets["oil"]}
     rows = accuracy.run_bars(args.model, args.bars, presets, args.surface_depth_mm)
-    lines = [f"Handbook bars, kinetics {args.model}, presets {presets['water']} / {presets['oil']}:", ""]
+    lines = [f"Handbook bars, kinetics {args.model}, water: {presets['water']}; oil: {presets['oil']}", ""]
     text = "\n".join(lines + accuracy.bars_markdown(rows, per_bar=True))
     print(text)
     if args.markdown:

@@ -33,9 +33,10 @@ def test_the_bar_file_follows_the_contract():
     header = [line for line in text.splitlines() if line and not line.startswith("#")][0]
     assert header == "grade,c,mn,si,ni,cr,mo,austenitize_c,quenchant,diameter_in,position,hrc,source"
     presets = accuracy.bar_presets()
-    from quenchwise.thermal.quenchants import builtin_names
-
-    assert set(presets) == {"water", "oil"} and set(presets.values()) <= set(builtin_names())
+    assert set(presets) == {"water", "oil"}
+    # Each names a quenchant the program knows (built-in preset or the quenchant model's keys), of its kind.
+    assert accuracy._quenchant(presets["water"]).kind == "water"
+    assert accuracy._quenchant(presets["oil"]).kind == "oil"
     bars = _bars(accuracy._rows(accuracy.BARS_CSV))
     assert len({k[0] for k in bars}) >= 5 and {k[1] for k in bars} == {"water", "oil"}
     assert {k[2] for k in bars} == {0.5, 1.0, 2.0, 4.0}
