@@ -329,7 +329,7 @@ def run_bars(model: str, path: Path = BARS_CSV, presets: dict | None = None,
         k = _bar_key(r)
         if k in keys:
             continue
-        chem = "\n".join(f"{el} = {float(r[el])!r}" for el in ("c", "mn", "si", "ni", "cr", "mo") if float(r[el] or 0) > 0)
+        chem = "\n".join(f"{el} = {float(r[el])!r}" for el in ("c", "mn", "si", "ni", "cr", "mo", "v") if float(r.get(el) or 0) > 0)
         text = (f'title = "{r["grade"]} {r["quenchant"]} {float(r["diameter_in"]):g} in"\n[steel]\n{chem}\n'
                 f'austenitize_c = {float(r["austenitize_c"])}\n[part]\nshape = "bar"\n'
                 f'diameter_mm = {float(r["diameter_in"]) * 25.4}\n[quench]\n{_quench_keys(presets[r["quenchant"]])}\n'
@@ -372,7 +372,7 @@ def _bath_c(preset: str) -> float:
 
 def _bar_key(r: dict) -> tuple:
     return (r["grade"], r["quenchant"], float(r["diameter_in"]), float(r["austenitize_c"]),
-            tuple(float(r[e]) for e in ("c", "mn", "si", "ni", "cr", "mo")))
+            tuple(float(r.get(e) or 0) for e in ("c", "mn", "si", "ni", "cr", "mo", "v")))
 
 
 def bar_summary(rows) -> dict:

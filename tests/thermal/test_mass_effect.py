@@ -31,7 +31,7 @@ def _bars(rows):
 def test_the_bar_file_follows_the_contract():
     text = accuracy.BARS_CSV.read_text("utf-8")
     header = [line for line in text.splitlines() if line and not line.startswith("#")][0]
-    assert header == "grade,c,mn,si,ni,cr,mo,austenitize_c,quenchant,diameter_in,position,hrc,source"
+    assert header == "grade,c,mn,si,ni,cr,mo,v,austenitize_c,quenchant,diameter_in,position,hrc,source"
     presets = accuracy.bar_presets()
     assert set(presets) == {"water", "oil"}
     # Each names a quenchant the program knows (built-in preset or the quenchant model's keys), of its kind.
