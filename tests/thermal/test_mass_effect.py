@@ -46,10 +46,29 @@ def test_the_bar_file_follows_the_contract():
 
 
 @pytest.fixture(scope="module")
-def table():
+def rows():
     from quenchwise.case import DEFAULT_MODEL
 
-    return _bars(accuracy.run_bars(DEFAULT_MODEL))
+    return accuracy.run_bars(DEFAULT_MODEL)
+
+
+@pytest.fixture(scope="module")
+def table(rows):
+    return _bars(rows)
+
+
+def test_the_command_line_prints_the_scorecard_numbers(rows, tmp_path, capsys):
+    # benchmarks/mass_effect.py is a thin command line over the scorecard's scorer: its summary line
+    # and bias table are those of section (b) (issue 12: one bar scorer, the same numbers).
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location("mass_effect", ROOT / "benchmarks" / "mass_effect.py")
+    mass_effect = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(mass_effect)
+    assert mass_effect.main(["--markdown", str(tmp_path / "bars.md")]) == 0
+    printed = (tmp_path / "bars.md").read_text("utf-8")
+    for line in accuracy.bars_markdown(rows):
+        assert line in printed, line
 
 
 def test_bias_by_position_within_stated_tolerances(table):
