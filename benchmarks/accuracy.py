@@ -11,9 +11,11 @@ Sections
                  within +/-2 and +/-4 HRC of it, bias against the band middle at J1-4, J6-12, J16-32,
                  and the J position of 50 % martensite hardness (Hodge & Orehoski) against the band
                  middle's.
-  (b) bars       handbook as-quenched round bars (data/mass_effect_bars.csv, if present; the quench
-                 helper's contract): simulated (workflows.simulate) against the readings at surface,
-                 half radius and centre.
+  (b) bars       handbook as-quenched round bars (data/mass_effect_bars.csv, if present): simulated
+                 (workflows.simulate) against the readings at surface (read at the file's
+                 surface_reading_depth_mm), half radius and centre, quenched as the file's
+                 quench_water / quench_oil say; the one bar scorer (run_bars), also behind
+                 benchmarks/mass_effect.py. The full run adds the score with other presets.
   (c) facts      CCT/TTT facts with their sources: Ms, the pearlite nose, critical cooling rates.
   (d) di         DI simulated (workflows.ideal_diameter) against ASTM A255 and against the DI implied
                  by the simulated end-quench curve (Grossmann's premise: the bar centre under an
