@@ -21,7 +21,7 @@ from .formatting import csv_cell, rounded
 from .version import __version__
 from .hardness.jominy_equivalent import equivalent_jominy_distance_mm
 from .hardness.phases import HARDNESS_METHOD
-from .kinetics import critical_temperature_note
+from .kinetics import critical_temperature_note, model_name
 from .steel import AusteniteState
 from .thermal.solver import CaseHistory
 
@@ -133,7 +133,7 @@ class Result:
                        "inner": case.inner.name if case.inner else None, "end_c": case.end_c,
                        "equivalent_h_per_inch": self.extra.get("equivalent_h", {}).get("outer"),
                        "equivalent_h_inner_per_inch": self.extra.get("equivalent_h", {}).get("inner")},
-            "models": {"kinetics": case.model, "martensite": case.martensite,
+            "models": {"kinetics": model_name(case.model), "martensite": case.martensite,
                        "hardness": f"{HARDNESS_METHOD}; ASTM E140 conversion"},
             "time_to_end_s": round(float(self.history.time_s[-1]), 3),
             "steps": self.history.steps,
@@ -144,7 +144,7 @@ class Result:
 
     def warnings(self) -> list[str]:
         case = self.case
-        out = list(case.composition.range_warnings(case.model))
+        out = list(case.composition.range_warnings(model_name(case.model)))
         out.extend(self.state.warnings())
         for q in (case.outer, case.inner):
             if q is not None and q.flash_point_c is not None and q.bath_c > q.flash_point_c - FLASH_MARGIN_K:

@@ -14,7 +14,7 @@ from ..case import Case
 from ..hardness import hardness_hv, hrc_from_hv
 from ..hardness.hardenability import a255_ideal_diameter
 from ..hardness.tempering import tempered_hardness_hv
-from ..kinetics import MODELS, PhaseStepper, SteelNodes
+from ..kinetics import PhaseStepper, SteelNodes, kinetics_model
 from ..results import Result
 from ..steel import austenitize
 from ..thermal.solver import BatchSolver, ThermalCase
@@ -47,7 +47,7 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
         if model != "none":
             nodes = SteelNodes.from_states([states[i] for i in members], [cases[i].grain_size for i in members],
                                            list(solver.counts), martensite_law=martensite)
-            stepper = PhaseStepper(nodes, MODELS[model](), solver.initial)
+            stepper = PhaseStepper(nodes, kinetics_model(model), solver.initial)
         share = len(members) / len(cases)
         report = None
         if progress is not None:
