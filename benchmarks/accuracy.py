@@ -289,7 +289,7 @@ def run_bars(model: str, path: Path = BARS_CSV):
         res = results[keys[(r["grade"], r["quenchant"], float(r["diameter_in"]), float(r["austenitize_c"]))]]
         radius = res.history.section.outer_m
         frac = {"surface": 1.0, "half_radius": 0.5, "centre": 0.0}[r["position"]]
-        hv = float(np.interp(frac * radius, res.history.radius_m, res.hv))
+        hv = res.at(res.hv, frac * radius)   # Result.at: whatever the node order
         hrc = float(hrc_from_hv(hv))
         out.append({**r, "sim_hrc": hrc if math.isfinite(hrc) else BELOW_SCALE_HRC})
     return out

@@ -276,7 +276,7 @@ def cooling_figure(result, out_dir: Path, units=None) -> list[Path]:
     fig, ax = plt.subplots(figsize=(7.0, 4.4))
     fig.subplots_adjust(bottom=0.2, right=0.95)
     for (label, r), colour in zip(result.points(), POINT_COLOURS):
-        j = int(np.argmin(np.abs(h.radius_m - r)))
+        j = result.node_at(r)
         ax.plot(t[1:], [u.temperature(v) for v in h.temperature_c[1:, j]], color=colour, lw=1.8, label=label)
     ax.set_xscale("log")
     ax.set_xlabel("time since immersion [s]")
@@ -334,8 +334,8 @@ def compare_figures(comparison, out_dir: Path, units=None) -> list[Path]:
     fig, ax = plt.subplots(figsize=(8.6, 4.6))
     fig.subplots_adjust(bottom=0.2, right=0.66, left=0.09)
     for i, (m, r) in enumerate(zip(comparison.media, comparison.results)):
-        h = r.history
-        ax.plot(np.maximum(h.time_s[1:], 1e-3), [u.temperature(v) for v in h.temperature_c[1:, 0]],
+        h, centre = r.history, int(np.argmax(r.depth_mm))
+        ax.plot(np.maximum(h.time_s[1:], 1e-3), [u.temperature(v) for v in h.temperature_c[1:, centre]],
                 color=palette[i % len(palette)], lw=1.6, label=m.name)
     ax.set_xscale("log")
     ax.set_xlabel("time since immersion [s]")
