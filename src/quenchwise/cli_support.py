@@ -162,6 +162,28 @@ def _emit(json_out: bool, payload: dict, text: str, files: list[Path] | None = N
         typer.echo(text + "\n\n" + CAUTION)
 
 
+def _figures_option():
+    return typer.Option("png", "--figures", help="Figure files to write: png (the default), svg, pdf, several "
+                                                 "comma-separated (png,svg,pdf), or none.")
+
+
+@contextmanager
+def _figures(value: str):
+    """The --figures option: every figure the command writes goes out in these formats (plots.
+    figure_formats); a bad value is one line, exit 2 (under _guard)."""
+    names = list(dict.fromkeys(v.strip().lower() for v in value.split(",") if v.strip()))
+    if names == ["png"]:      # the default: nothing to set (and no matplotlib import for it)
+        yield
+        return
+    allowed = ("png", "svg", "pdf")
+    if names != ["none"] and (not names or any(n not in allowed for n in names)):
+        raise InputError("--figures", value, "png, svg or pdf, several comma-separated (e.g. png,svg), or none")
+    from .plots import figure_formats
+
+    with figure_formats(() if names == ["none"] else names):
+        yield
+
+
 def _page(page: str) -> str:
     """The --page option: a4 or letter."""
     page = page.strip().lower()
