@@ -17,27 +17,14 @@ import typer
 from . import publish
 from .cautions import CAUTION
 from .cli_support import (_activity, _check_out_dir, _emit, _guard, _page, _publish, _quench, _refined,  # noqa: F401
-                          _figures, _figures_option, _requirement_from_options, _run_case, _sheet_note, _solve, _units_option, _write_csv,
-                          interrupted)
+                          _requirement_from_options, _run_case, _sheet_note, _solve, _units_option, _write_csv,
+                          _figures, _figures_option, _json_option, _overwrite_option, _units_choice, interrupted)
 from .errors import InputError
 from .version import __version__
 
 # rich_markup_mode=None: help texts are plain text, so "[requirement]" or "[C]" is printed, not eaten as markup.
 app = typer.Typer(add_completion=False, no_args_is_help=True, rich_markup_mode=None,
                   help="quenchwise: predict the hardness of a quenched steel part from surface to core.")
-
-
-def _json_option(what: str = "the summary"):
-    return typer.Option(False, "--json", help=f"Print {what} as one JSON object, nothing else.")
-
-
-def _overwrite_option(what: str = "results already in --out"):
-    return typer.Option(False, "--overwrite", help=f"Replace {what}.")
-
-
-def _units_choice(what: str = "the CSV"):
-    return typer.Option("si", "--units", help=f"Output units: si (mm, C) or us (in, F) for the text, {what} and "
-                                              "the figures; --json stays SI.")
 
 
 @app.command()

@@ -6,8 +6,6 @@ thin grey dash-dot lines labelled at the right edge.
 
 from __future__ import annotations
 
-from contextlib import contextmanager
-from contextvars import ContextVar
 from pathlib import Path
 
 import matplotlib
@@ -17,49 +15,11 @@ import matplotlib.pyplot as plt  # noqa: E402
 import numpy as np  # noqa: E402
 
 from .cautions import SHORT_CAUTION  # noqa: E402
+from .figure_files import figure_formats, save_figure as _save  # noqa: E402, F401  (PNG unless asked)
 from .hardness import hrc_from_hv, hv_from_hrc  # noqa: E402
 
 POINT_COLOURS = ("#1d3557", "#c77d1a", "#a4343a")
 INK = "#1d3557"
-
-
-#: Formats a figure may be written in (the commands' --figures option); PNG unless asked otherwise.
-FIGURE_FORMATS = ("png", "svg", "pdf")
-DEFAULT_FIGURE_FORMATS = ("png",)
-_formats: ContextVar[tuple[str, ...]] = ContextVar("figure_formats", default=DEFAULT_FIGURE_FORMATS)
-
-
-@contextmanager
-def figure_formats(formats):
-    """``with figure_formats(("png", "svg")):`` every figure written inside goes out in these
-    formats (an empty tuple: no figure files at all)."""
-    formats = tuple(formats)
-    unknown = [f for f in formats if f not in FIGURE_FORMATS]
-    if unknown:
-        raise ValueError(f"figure formats {unknown}: allowed {', '.join(FIGURE_FORMATS)}")
-    token = _formats.set(formats)
-    try:
-        yield formats
-    finally:
-        _formats.reset(token)
-
-
-def _save(fig, out_dir: Path, stem: str) -> list[Path]:
-    """Write the figure once per requested format (figure_formats; PNG by default), each file
-    atomically; the figure is drawn by the first savefig and only re-rendered by the others."""
-    paths = []
-    for ext in _formats.get():
-        p = Path(out_dir) / f"{stem}.{ext}"
-        tmp = p.with_name(f".{p.name}.part")
-        fig.savefig(tmp, dpi=130, format=ext, metadata=_METADATA[ext])
-        tmp.replace(p)
-        paths.append(p)
-    plt.close(fig)
-    return paths
-
-
-#: Fixed file metadata: no creation date, so the same input gives the same bytes.
-_METADATA = {"png": None, "svg": {"Date": None}, "pdf": {"CreationDate": None}}
 
 
 def _footer(fig, text: str) -> None:
