@@ -18,7 +18,7 @@ PACKAGE = Path(__file__).resolve().parents[2] / "src" / "quenchwise"
 #: floor of each top-level module or subpackage of quenchwise (lowest first)
 FLOORS = {
     # 0: leaves every layer may use
-    "errors": 0, "cautions": 0, "units": 0, "version": 0, "tomltext": 0, "csvmeta": 0, "formatting": 0,
+    "errors": 0, "cautions": 0, "units": 0, "version": 0, "tomltext": 0, "csvmeta": 0, "formatting": 0, "interpolation": 0,
     # 1: steel chemistry and critical temperatures
     "steel": 1,
     # 2: the science layers and their data holders

@@ -6,7 +6,7 @@ A kinetics model is a small frozen dataclass with
     factors(chem) -> dict of per-node composition factors (computed once),
     time_constants(factors, grain_size, temperature_c, undercooling) -> K(T) per product [s]
         (tau(X, T) = K(T) S(X); products ferrite, cementite, pearlite, bainite),
-    fraction(product, progress, factors) -> X = S^-1(sum dt/K) ("pro", "pearlite", "bainite").
+    fraction(product, progress, factors) -> X = S^-1(sum dt/K) ("proeutectoid", "pearlite", "bainite").
 """
 
 from ..steel.critical import ACM_METHOD, AE_METHOD, MS_METHOD
