@@ -14,8 +14,8 @@ from ..case import Case
 from ..hardness import hardness_hv, hrc_from_hv
 from ..hardness.hardenability import a255_ideal_diameter
 from ..hardness.tempering import tempered_hardness_hv
-from ..kinetics import MODELS, PhaseStepper, SteelNodes
-from ..results import Result
+from ..kinetics import PhaseStepper, SteelNodes, kinetics_model
+from ..results import Result, surface_first
 from ..steel import austenitize
 from ..thermal.solver import BatchSolver, ThermalCase
 
@@ -47,7 +47,7 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
         if model != "none":
             nodes = SteelNodes.from_states([states[i] for i in members], [cases[i].grain_size for i in members],
                                            list(solver.counts), martensite_law=martensite)
-            stepper = PhaseStepper(nodes, MODELS[model](), solver.initial)
+            stepper = PhaseStepper(nodes, kinetics_model(model), solver.initial)
         share = len(members) / len(cases)
         report = None
         if progress is not None:
@@ -78,8 +78,12 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
                 chem = state.austenite_composition.as_dict()
                 hv = hardness_hv(fractions, rate, chem, undissolved_cementite=state.cementite)
                 ms = stepper.ms_at_start[sl].copy()
-            result = Result(case=case, state=state, history=history, fractions=fractions, hv=hv,
-                            hrc=hrc_from_hv(hv), cooling_rate_700_c_s=rate, ms_c=float(ms[0]) if n else np.nan)
+            # The solver's nodes run from the centre outward; a Result runs from the surface inward.
+            # Ms of the austenite at the start, at the centre node (the solver's first).
+            result = Result(case=case, state=state, history=surface_first(history),
+                            fractions={k: v[::-1] for k, v in fractions.items()}, hv=hv[::-1],
+                            hrc=hrc_from_hv(hv[::-1]), cooling_rate_700_c_s=rate[::-1],
+                            ms_c=float(ms[0]) if n else np.nan)
             _add_hardness_extras(result)
             results[i] = result
     return results  # type: ignore[return-value]
