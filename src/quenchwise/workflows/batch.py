@@ -17,6 +17,7 @@ from ..hardness.tempering import tempered_hardness_hv
 from ..kinetics import PhaseStepper, SteelNodes, kinetics_model
 from ..results import Result, surface_first
 from ..steel import austenitize
+from ..thermal.integrator import rate_through
 from ..thermal.solver import BatchSolver, ThermalCase
 
 #: Temperature the part reaches after the quench, when martensite formation ends [C].
@@ -70,7 +71,7 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
                              "martensite": np.zeros(n), "austenite": np.full(n, state.austenite),
                              "cementite": np.full(n, state.cementite)}
                 hv = np.full(n, np.nan)
-                rate = _rate_700(history)
+                rate = rate_through(history.time_s, history.temperature_c, 700.0)
                 ms = np.full(n, np.nan)
             else:
                 fractions = {k: v[sl].copy() for k, v in stepper.fractions().items()}
@@ -127,17 +128,3 @@ def attach_equivalent_severity(results: list[Result]) -> None:
     values = grossmann_h_values([q for r in results for q in (r.case.outer, r.case.inner)])
     for i, r in enumerate(results):
         r.extra["equivalent_h"] = {"outer": values[2 * i], "inner": values[2 * i + 1]}
-
-
-def _rate_700(history) -> np.ndarray:
-    """Cooling rate at 700 C of each node from the stored history (pure conduction runs): over the
-    first step in which the node passes 700 C; NaN where it never does."""
-    t, temp = history.time_s, history.temperature_c
-    out = np.full(temp.shape[1], np.nan)
-    if temp.shape[0] < 2:
-        return out
-    crossed = (temp[:-1] > 700.0) & (temp[1:] <= 700.0)          # (steps, nodes)
-    has = crossed.any(axis=0)
-    i, j = np.argmax(crossed, axis=0)[has], np.flatnonzero(has)
-    out[has] = (temp[i, j] - temp[i + 1, j]) / (t[i + 1] - t[i])
-    return out

@@ -13,7 +13,7 @@ from typing import Callable
 
 from ..case import Case
 from ..results import Result
-from .batch import ROOM_C, _rate_700, attach_equivalent_severity  # noqa: F401  (the module's former names)
+from .batch import ROOM_C, attach_equivalent_severity  # noqa: F401  (the module's former names)
 from .batch import simulate as simulate_batch
 
 
