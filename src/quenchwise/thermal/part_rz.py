@@ -1,0 +1,225 @@
+"""Finite parts (bar, ring, stepped shaft) meshed in (r, z) as a Geometry of the shared integrator.
+
+The members of a batch share one radial grid and are stacked along z on one
+``fipy.CylindricalGrid2D`` (cell volumes r dr dz and face areas per radian, as FiPy computes them);
+cells run r fastest within each member, so the matrix bandwidth is the number of radial cells.
+No conducting face joins two members (each member's lower and upper rows are cooled end faces).
+A stepped shaft lies in the bounding rectangle of its largest step: the cells outside its profile
+are marked ``solid = False`` and get no faces. Every cooled face of a solid cell toward a
+non-solid cell or the edge of the member's rectangle is listed once as a surface row, tagged by
+the face it belongs to:
+
+=========== ============================================================
+tag         face
+=========== ============================================================
+side        outer cylindrical face of any step (r-normal)
+bore        the bore of a ring (r-normal, at the bore radius)
+lower_end   the end face at z = 0
+upper_end   the end face at z = length
+shoulder    an annular face between two steps (z-normal, inside the length)
+=========== ============================================================
+
+Each member gives a quenchant per tag (None: insulated). The mesh is graded: cells grow by the
+settings' growth factor away from every cooled face (side, bore, each step's two ends).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import fipy as fp
+import numpy as np
+
+from .part_shape import FinitePart, PartSettings, graded_widths, split_cells
+from .properties import DENSITY_KG_M3, ConstantOverrides
+from .quenchants import Quenchant
+
+TAGS = ("side", "bore", "lower_end", "upper_end", "shoulder")
+
+
+@dataclass(frozen=True)
+class PartMember:
+    """One part to cool: its shape, the quenchant of each face tag (missing or None: insulated),
+    start and end temperatures and optional constant properties (verification runs)."""
+
+    name: str
+    part: FinitePart
+    media: dict
+    initial_c: float
+    end_c: float
+    conductivity_w_mk: float | None = None
+    density_kg_m3: float | None = None
+    specific_heat_j_kgk: float | None = None
+
+
+@dataclass
+class PartGeometry:
+    """The integrator's Geometry (INTEGRATOR.md, same field names) plus what the results need:
+    per member its cell-centre radii and heights, cell widths, and each surface row's tag."""
+
+    mesh: object
+    member_starts: np.ndarray
+    member_counts: np.ndarray
+    capacity: np.ndarray
+    density_kg_m3: np.ndarray
+    initial_c: np.ndarray
+    end_c: np.ndarray
+    overrides: ConstantOverrides
+    face_cells: np.ndarray
+    face_ids: np.ndarray
+    face_half_m: np.ndarray
+    face_weight: np.ndarray
+    surface_rows: list            # (member, cell, area, half_m, quenchant, tag): the Surfaces entries
+    names: list
+    solid: np.ndarray
+    record_surface_row: np.ndarray
+    r_m: np.ndarray               # (nr,) cell-centre radii, shared by the members
+    dr_m: np.ndarray
+    z_m: list = field(default_factory=list)    # per member (nz,) cell-centre heights from its lower end
+    dz_m: list = field(default_factory=list)
+
+    @property
+    def nr(self) -> int:
+        return self.r_m.size
+
+    CONTRACT_FIELDS = ("mesh", "member_starts", "member_counts", "capacity", "density_kg_m3", "initial_c", "end_c",
+                       "overrides", "face_cells", "face_ids", "face_half_m", "face_weight", "names", "solid",
+                       "record_surface_row")
+
+
+def radial_faces(part: FinitePart, settings: PartSettings) -> np.ndarray:
+    """Radial cell faces [m] from the axis (or the bore) to the largest radius: one segment per
+    distinct step radius, graded towards every radius that is a cooled face."""
+    breaks = np.unique(np.concatenate([[part.bore_m], np.asarray(part.radii_m, dtype=float)]))
+    lengths = np.diff(breaks)
+    cells = split_cells(lengths, settings.radial_cells)
+    widths = [graded_widths(L, n, settings.growth, at_start=(a > 0.0), at_end=True)
+              for a, L, n in zip(breaks[:-1], lengths, cells)]
+    faces = breaks[0] + np.concatenate([[0.0], np.cumsum(np.concatenate(widths))])
+    faces[-1] = breaks[-1]
+    return faces
+
+
+def axial_widths(part: FinitePart, settings: PartSettings) -> np.ndarray:
+    """Axial cell widths [m] from the lower end: each step graded towards both of its ends."""
+    cells = split_cells(part.lengths_m, settings.axial_cells)
+    return np.concatenate([graded_widths(L, n, settings.growth, True, True) for L, n in zip(part.lengths_m, cells)])
+
+
+def build_geometry(members: list[PartMember], settings: PartSettings = PartSettings()) -> PartGeometry:
+    """The (r, z) Geometry of a batch of parts that share one radial grid (see the module docstring)."""
+    if not members:
+        raise ValueError("a batch needs at least one part")
+    r_faces = radial_faces(members[0].part, settings)
+    for m in members[1:]:
+        other = radial_faces(m.part, settings)
+        if other.shape != r_faces.shape or not np.allclose(other, r_faces, rtol=0, atol=1e-12):
+            raise ValueError("the parts of one batch share one radial grid (group them by radial_faces)")
+    dr = np.diff(r_faces)
+    r_c = 0.5 * (r_faces[:-1] + r_faces[1:])
+    nr = dr.size
+    dz_members = [axial_widths(m.part, settings) for m in members]
+    nz_members = np.array([d.size for d in dz_members])
+    dz_all = np.concatenate(dz_members)
+    NZ = dz_all.size
+    mesh = fp.CylindricalGrid2D(dr=dr, dz=dz_all, origin=((r_faces[0],), (0.0,)))
+    counts = nz_members * nr
+    starts = np.concatenate([[0], np.cumsum(counts)[:-1]]).astype(int)
+    row_start = np.concatenate([[0], np.cumsum(nz_members)[:-1]]).astype(int)
+    n = int(counts.sum())
+    z_members = []
+    solid = np.zeros(n, dtype=bool)
+    for b, (m, dz) in enumerate(zip(members, dz_members)):
+        zf = np.concatenate([[0.0], np.cumsum(dz)])
+        zc = 0.5 * (zf[:-1] + zf[1:])
+        z_members.append(zc)
+        rr, zz = np.meshgrid(r_c, zc)                      # (nz, nr), r fastest when flattened
+        solid[starts[b]:starts[b] + counts[b]] = m.part.is_solid(rr, zz).ravel()
+    member_of_cell = np.repeat(np.arange(len(members)), counts)
+    dr_cell = np.tile(dr, NZ)
+    dz_cell = np.repeat(dz_all, nr)
+    r_cell = np.tile(r_c, NZ)
+    grid = np.arange(n).reshape(NZ, nr)
+    n_zfaces = nr * (NZ + 1)
+
+    # Interior conducting faces: both cells solid and of the same member.
+    lower, upper = grid[:-1, :].ravel(), grid[1:, :].ravel()
+    keep = solid[lower] & solid[upper] & (member_of_cell[lower] == member_of_cell[upper])
+    zf_ids = (np.arange(1, NZ)[:, None] * nr + np.arange(nr)[None, :]).ravel()[keep]
+    za, zb = lower[keep], upper[keep]
+    left, right = grid[:, :-1].ravel(), grid[:, 1:].ravel()
+    keep_r = solid[left] & solid[right]
+    rf_ids = (n_zfaces + np.arange(NZ)[:, None] * (nr + 1) + np.arange(1, nr)[None, :]).ravel()[keep_r]
+    ra, rb = left[keep_r], right[keep_r]
+    face_cells = np.concatenate([np.stack([za, zb], axis=1), np.stack([ra, rb], axis=1)]).astype(int)
+    face_ids = np.concatenate([zf_ids, rf_ids]).astype(int)
+    face_half = np.concatenate([np.stack([0.5 * dz_cell[za], 0.5 * dz_cell[zb]], axis=1),
+                                np.stack([0.5 * dr_cell[ra], 0.5 * dr_cell[rb]], axis=1)])
+
+    # Cooled faces: a solid cell's face towards a non-solid cell or the edge of its member.
+    rows = []
+    record = np.full(len(members), -1)
+    for b, m in enumerate(members):
+        block = grid[row_start[b]:row_start[b] + nz_members[b], :]
+        s = solid[block]
+        nz = block.shape[0]
+        pad = np.zeros((nz + 2, nr + 2), dtype=bool)
+        pad[1:-1, 1:-1] = s
+        length, bore = m.part.length_m, m.part.bore_m
+        z_top = np.concatenate([[0.0], np.cumsum(dz_members[b])])[1:]
+        best_side, best_dist = -1, np.inf
+        for j in range(nz):
+            for i in range(nr):
+                if not s[j, i]:
+                    continue
+                c = int(block[j, i])
+                if not pad[j + 2, i + 1]:          # face above
+                    tag = "upper_end" if j == nz - 1 else "shoulder"
+                    rows.append((b, c, r_c[i] * dr[i], 0.5 * dz_cell[c], tag))
+                if not pad[j, i + 1]:              # face below
+                    tag = "lower_end" if j == 0 else "shoulder"
+                    rows.append((b, c, r_c[i] * dr[i], 0.5 * dz_cell[c], tag))
+                if not pad[j + 1, i + 2]:          # outer face
+                    rows.append((b, c, r_faces[i + 1] * dz_cell[c], 0.5 * dr[i], "side"))
+                    dist = abs(z_top[j] - 0.5 * dz_members[b][j] - m.part.profile_z_m)
+                    if i == nr - 1 and dist < best_dist:
+                        best_side, best_dist = len(rows) - 1, dist
+                if i == 0 and bore > 0.0:          # bore face (the mesh starts at the bore)
+                    rows.append((b, c, r_faces[0] * dz_cell[c], 0.5 * dr[i], "bore"))
+                elif i > 0 and not pad[j + 1, i]:  # inner face towards a non-solid cell
+                    rows.append((b, c, r_faces[i] * dz_cell[c], 0.5 * dr[i], "side"))
+        record[b] = best_side
+        del length
+    surface_rows = []
+    kept_index = {}
+    for k, (b, c, area, half, tag) in enumerate(rows):
+        q = members[b].media.get(tag)
+        if q is None:
+            continue          # insulated face
+        kept_index[k] = len(surface_rows)
+        surface_rows.append((b, c, float(area), float(half), q, tag))
+    record = np.array([kept_index.get(int(k), -1) for k in record])
+
+    def per_cell(attr, default):
+        vals = [getattr(m, attr) for m in members]
+        return np.repeat(np.array([default if v is None else v for v in vals], dtype=float), counts)
+
+    return PartGeometry(
+        mesh=mesh, member_starts=starts, member_counts=counts, capacity=np.ones(n),
+        density_kg_m3=per_cell("density_kg_m3", DENSITY_KG_M3), initial_c=per_cell("initial_c", np.nan),
+        end_c=np.array([m.end_c for m in members], dtype=float),
+        overrides=ConstantOverrides(per_cell("conductivity_w_mk", np.nan), per_cell("specific_heat_j_kgk", np.nan)),
+        face_cells=face_cells, face_ids=face_ids, face_half_m=face_half, face_weight=np.ones(face_ids.size),
+        surface_rows=surface_rows, names=[m.name for m in members], solid=solid, record_surface_row=record,
+        r_m=r_c, dr_m=dr, z_m=z_members, dz_m=dz_members,
+    )
+
+
+def scaled(q: Quenchant, factor: float) -> Quenchant:
+    """The same medium with its boiling/convection h multiplied by factor (radiation unchanged)."""
+    from dataclasses import replace
+
+    if factor == 1.0:
+        return q
+    return replace(q, name=f"{q.name} (h x {factor:g})", htc_w_m2k=np.asarray(q.htc_w_m2k, dtype=float) * factor,
+                   listed_grossmann_h=None, listed_probe=None)
