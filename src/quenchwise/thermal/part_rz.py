@@ -32,7 +32,6 @@ import numpy as np
 
 from .part_shape import FinitePart, PartSettings, graded_widths, split_cells
 from .properties import DENSITY_KG_M3, ConstantOverrides
-from .quenchants import Quenchant
 
 TAGS = ("side", "bore", "lower_end", "upper_end", "shoulder")
 
@@ -214,12 +213,3 @@ def build_geometry(members: list[PartMember], settings: PartSettings = PartSetti
         r_m=r_c, dr_m=dr, z_m=z_members, dz_m=dz_members,
     )
 
-
-def scaled(q: Quenchant, factor: float) -> Quenchant:
-    """The same medium with its boiling/convection h multiplied by factor (radiation unchanged)."""
-    from dataclasses import replace
-
-    if factor == 1.0:
-        return q
-    return replace(q, name=f"{q.name} (h x {factor:g})", htc_w_m2k=np.asarray(q.htc_w_m2k, dtype=float) * factor,
-                   listed_grossmann_h=None, listed_probe=None)

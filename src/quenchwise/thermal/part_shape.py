@@ -171,3 +171,14 @@ def split_cells(lengths, total: int, minimum: int = 4) -> list[int]:
     lengths = np.asarray(lengths, dtype=float)
     raw = total * lengths / lengths.sum()
     return [max(minimum, int(round(x))) for x in raw]
+
+
+def scaled(q, factor: float):
+    """The same medium (a quenchants.Quenchant) with its table h multiplied by factor (radiation
+    unchanged): an end face's own severity, e.g. under a longer or shorter vapour blanket."""
+    from dataclasses import replace
+
+    if factor == 1.0:
+        return q
+    return replace(q, name=f"{q.name} (h x {factor:g})", htc_w_m2k=np.asarray(q.htc_w_m2k, dtype=float) * factor,
+                   listed_grossmann_h=None, listed_probe=None)
