@@ -74,6 +74,10 @@ def run(
         result = _quench(case, json_out, f"solving the quench of {case_file or 'the quick case'}")
 
         def write(staging):
+            if getattr(result, "finite", False):   # a finite part in (r, z): its own files and maps
+                from .part_maps import write_part_files
+
+                return write_part_files(result, staging, u)
             write_result_h5(result, staging / "result.h5")
             text = profile_csv_text(result)
             (staging / "profile.csv").write_text(us_csv_text(text) if u.us else text, "utf-8")
