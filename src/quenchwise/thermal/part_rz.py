@@ -30,7 +30,7 @@ from dataclasses import dataclass, field
 import fipy as fp
 import numpy as np
 
-from .part_shape import FinitePart, PartSettings, graded_widths, split_cells
+from .part_shape import FinitePart, PartSettings, first_width, widths_from_first
 from .properties import DENSITY_KG_M3, ConstantOverrides
 
 TAGS = ("side", "bore", "lower_end", "upper_end", "shoulder")
@@ -88,21 +88,23 @@ class PartGeometry:
 
 def radial_faces(part: FinitePart, settings: PartSettings) -> np.ndarray:
     """Radial cell faces [m] from the axis (or the bore) to the largest radius: one segment per
-    distinct step radius, graded towards every radius that is a cooled face."""
+    distinct step radius, each graded from every radius that is a cooled face with the first cell
+    of part_shape.first_width."""
+    bore = part.bore_m > 0.0
+    first = first_width(part.outer_m - part.bore_m, settings.radial_cells, settings.growth, both=bore)
     breaks = np.unique(np.concatenate([[part.bore_m], np.asarray(part.radii_m, dtype=float)]))
-    lengths = np.diff(breaks)
-    cells = split_cells(lengths, settings.radial_cells)
-    widths = [graded_widths(L, n, settings.growth, at_start=(a > 0.0), at_end=True)
-              for a, L, n in zip(breaks[:-1], lengths, cells)]
+    widths = [widths_from_first(b - a, first, settings.growth, at_start=(a > 0.0), at_end=True)
+              for a, b in zip(breaks[:-1], breaks[1:])]
     faces = breaks[0] + np.concatenate([[0.0], np.cumsum(np.concatenate(widths))])
     faces[-1] = breaks[-1]
     return faces
 
 
 def axial_widths(part: FinitePart, settings: PartSettings) -> np.ndarray:
-    """Axial cell widths [m] from the lower end: each step graded towards both of its ends."""
-    cells = split_cells(part.lengths_m, settings.axial_cells)
-    return np.concatenate([graded_widths(L, n, settings.growth, True, True) for L, n in zip(part.lengths_m, cells)])
+    """Axial cell widths [m] from the lower end: each step graded towards both of its ends with
+    the first cell of the whole length graded from both ends (part_shape.first_width)."""
+    first = first_width(part.length_m, settings.axial_cells, settings.growth, both=True)
+    return np.concatenate([widths_from_first(L, first, settings.growth, True, True) for L in part.lengths_m])
 
 
 def build_geometry(members: list[PartMember], settings: PartSettings = PartSettings()) -> PartGeometry:

@@ -117,8 +117,13 @@ class PartSettings:
     the length, geometric growth of cell size away from each cooled face, and the step limits
     (the same meaning as SolverSettings').
 
-    Defaults: 24 radial and 48 axial cells, growth 1.12, give a first cell of 0.2 mm at the side
-    and 0.4 mm at the ends of a 50 x 100 mm bar."""
+    radial_cells and axial_cells set the size of the first cell at a cooled face: that of a bar of
+    the largest radius (or of the ring's wall, graded from both faces) with radial_cells cells, and
+    of the whole length graded from both ends with axial_cells cells. Every cooled face (each
+    step's side and ends, shoulders, bore) gets that first cell, growing by `growth` inwards, so a
+    stepped shaft has more cells than a bar of its largest step. Defaults: 24 radial and 48 axial
+    cells, growth 1.12: a first cell of 0.21 mm at the side and 0.42 mm at the ends of a 50 x 100
+    mm bar."""
 
     radial_cells: int = 24
     axial_cells: int = 48
@@ -141,36 +146,43 @@ class PartSettings:
                             max_steps=self.max_steps * f, max_time_s=self.max_time_s)
 
 
-def graded_widths(length_m: float, cells: int, growth: float, at_start: bool, at_end: bool) -> np.ndarray:
-    """Widths of `cells` cells over length_m, growing by `growth` per cell away from each graded end
-    (a cooled face); uniform when neither end is graded.
+def first_width(length_m: float, cells: int, growth: float, both: bool) -> float:
+    """Width of the cell at a graded end when `cells` cells grow by `growth` over length_m from one
+    end (both=False) or from both ends (both=True).
 
-    >>> w = graded_widths(0.01, 10, 1.2, True, True)
-    >>> round(float(w.sum()), 12), bool(w[0] == w[-1] < w[4])
-    (0.01, True)
+    >>> round(first_width(0.025, 24, 1.12, False) * 1000, 4)
+    0.2116
     """
-    cells = max(int(cells), 1)
-    if at_start and at_end:
-        half = cells // 2
-        raw = np.concatenate([growth ** np.arange(cells - half), growth ** np.arange(half)[::-1]])
-    elif at_start:
-        raw = growth ** np.arange(cells)
-    elif at_end:
-        raw = growth ** np.arange(cells)[::-1]
+    n = max(cells // 2 if both else cells, 1)
+    span = length_m / 2.0 if both else length_m
+    return span / n if growth == 1.0 else span * (growth - 1.0) / (growth ** n - 1.0)
+
+
+def widths_from_first(length_m: float, first_m: float, growth: float, at_start: bool, at_end: bool) -> np.ndarray:
+    """Cell widths over length_m that start at first_m at each graded end and grow by `growth`,
+    as many cells as that takes (at least 2 per graded run), scaled to fill the length exactly.
+
+    >>> w = widths_from_first(0.025, 0.0002116, 1.12, False, True)
+    >>> w.size, round(float(w.sum()), 12), round(float(w[-1]) * 1000, 3)
+    (24, 0.025, 0.212)
+    """
+    both = at_start and at_end
+    span = length_m / 2.0 if both else length_m
+    if growth == 1.0:
+        n = int(np.ceil(span / first_m - 1e-9))
     else:
-        raw = np.ones(cells)
+        n = int(np.ceil(np.log(1.0 + span * (growth - 1.0) / first_m) / np.log(growth) - 1e-9))
+    n = max(n, 2)
+    run = growth ** np.arange(n)
+    if both:
+        raw = np.concatenate([run, run[::-1]])
+    elif at_start:
+        raw = run
+    elif at_end:
+        raw = run[::-1]
+    else:
+        raw = np.ones(n)
     return raw * (length_m / raw.sum())
-
-
-def split_cells(lengths, total: int, minimum: int = 4) -> list[int]:
-    """Cells for each segment, in proportion to its length, at least `minimum` each.
-
-    >>> split_cells([1.0, 3.0], 20)
-    [5, 15]
-    """
-    lengths = np.asarray(lengths, dtype=float)
-    raw = total * lengths / lengths.sum()
-    return [max(minimum, int(round(x))) for x in raw]
 
 
 def scaled(q, factor: float):
