@@ -18,6 +18,7 @@ from pathlib import Path
 from .errors import InputError
 from .tomltext import toml_text
 from .measured import read_measured_jominy
+from .part_case import FINITE_KEYS, parse_part
 from .steel.composition import ELEMENTS, Composition
 from .steel.austenite import austenitize
 from .steel.grades import find_grade
@@ -29,16 +30,13 @@ from .units import US_KEYS, si_keys
 SECTIONS = {
     "title": {},
     "steel": {"grade", "grain_size", "austenitize_c", "measured_jominy", *ELEMENTS},
-    "part": {"shape", "thickness_mm", "diameter_mm", "outer_diameter_mm", "inner_diameter_mm", "faces",
-             "length_mm", "step_diameters_mm", "step_lengths_mm", "fillet_radius_mm"},
+    "part": {"shape", "thickness_mm", "diameter_mm", "outer_diameter_mm", "inner_diameter_mm", "faces"} | FINITE_KEYS["part"],
     "quench": {"medium", "htc_w_m2k", "severity_h", "bath_c", "end_c", "kind", "agitation", "concentration_pct",
-               "inner_medium", "inner_htc_w_m2k", "inner_severity_h", "inner_bath_c",
-               "end_faces_medium", "end_face_h_scale", "lower_end_h_scale"},
+               "inner_medium", "inner_htc_w_m2k", "inner_severity_h", "inner_bath_c"} | FINITE_KEYS["quench"],
     "temper": {"temperature_c", "hours"},
     "transform": {"model", "martensite"},
     "thermal": {"conductivity_w_mk", "density_kg_m3", "specific_heat_j_kgk"},
-    "mesh": {"cells", "growth", "max_temperature_step_k", "max_fraction_step", "max_relative_step",
-             "radial_cells", "axial_cells"},
+    "mesh": {"cells", "growth", "max_temperature_step_k", "max_fraction_step", "max_relative_step"} | FINITE_KEYS["mesh"],
     "requirement": {"min_hrc", "min_martensite_pct", "depth_mm"},
     "compare": {"media"},
     "record": set(),  # filled below from RECORD_KEYS
@@ -135,15 +133,7 @@ class Case:
     #: [steel] measured_jominy: the heat's end-quench curve (measured.MeasuredCurve); the
     #: steel is fitted to it before a solve (workflows.heat_fit), which then sets this to None.
     measured_jominy: object = None
-    #: A finite part solved in (r, z) (thermal.part_shape.FinitePart): [part] length_mm on a bar or
-    #: tube, or shape = "stepped_shaft"; None: the 1-D section. section is then the radial profile
-    #: at the part's profile line (the thickest step's mid-length).
-    finite: object = None
-    #: Quenchants of the end faces of a finite part {"lower_end": Quenchant, "upper_end": Quenchant}
-    #: ([quench] end_faces_medium, end_face_h_scale, lower_end_h_scale); empty: the outer medium.
-    end_media: dict = field(default_factory=dict)
-    #: (r, z) numerics of a finite part (thermal.part_shape.PartSettings), None for 1-D sections.
-    part_settings: object = None
+    finite: object = None   # part_case.FiniteSpec: a finite part solved in (r, z) (issue 17); None: the 1-D section
 
     @property
     def source_sha256(self) -> str:
@@ -254,8 +244,6 @@ def _check_cooling_time(q: dict, section: Section, outer: Quenchant, inner: Quen
 
 def _section(p: dict) -> tuple[Section, dict]:
     shape = _choice(p, "part", "shape", SHAPE_NAMES)
-    if shape == "stepped_shaft" or "length_mm" in p:
-        return _finite_section(p, shape)
     allowed_dims = {"plate": {"thickness_mm", "faces"}, "bar": {"diameter_mm"}, "sphere": {"diameter_mm"},
                     "tube": {"outer_diameter_mm", "inner_diameter_mm"}}[shape]
     for key in p:
@@ -274,80 +262,6 @@ def _section(p: dict) -> tuple[Section, dict]:
     if do - di < 2 * size[0] / 2:
         raise InputError("part.inner_diameter_mm", di, f"a bore leaving a wall of at least 0.25 mm (outer {do:g} mm)")
     return Section.tube(do / 1000.0, di / 1000.0), {"outer_diameter_mm": do, "inner_diameter_mm": di}
-
-
-#: Largest number of steps of a stepped shaft.
-MAX_STEPS = 12
-
-
-def _finite_section(p: dict, shape: str) -> tuple[Section, dict]:
-    """A finite part ([part] length_mm on a bar or tube, or a stepped shaft): its radial Section
-    at the profile line, and its dimensions with the FinitePart under "_finite"."""
-    from .thermal.part_shape import FinitePart
-
-    size = (0.5, 2000.0)
-    if shape in ("plate", "sphere"):
-        raise InputError("part.length_mm", p["length_mm"], "length_mm only for shape = 'bar' or 'tube' (or use "
-                         "shape = 'stepped_shaft')")
-    if shape in ("bar", "tube"):
-        section, dims = _section({k: v for k, v in p.items() if k != "length_mm"})
-        length = _number(p, "part", "length_mm", *size, required=True)
-        if section.shape == "bar":
-            part = FinitePart.bar(section.outer_m * 2.0, length / 1000.0)
-        else:
-            part = FinitePart.ring(section.outer_m * 2.0, section.inner_m * 2.0, length / 1000.0)
-        return section, {**dims, "length_mm": length, "_finite": part}
-    allowed = {"step_diameters_mm", "step_lengths_mm", "fillet_radius_mm"}
-    for key in p:
-        if key != "shape" and key not in allowed:
-            raise InputError(f"part.{key}", p[key], "for shape = 'stepped_shaft' only " + ", ".join(sorted(allowed)))
-    lists = {}
-    for key in ("step_diameters_mm", "step_lengths_mm"):
-        v = p.get(key)
-        if (not isinstance(v, list) or not 1 <= len(v) <= MAX_STEPS
-                or not all(isinstance(x, (int, float)) and not isinstance(x, bool) and math.isfinite(x)
-                           and size[0] <= x <= size[1] for x in v)):
-            raise InputError(f"part.{key}", "(missing)" if v is None else v,
-                             f"a list of 1 to {MAX_STEPS} numbers from {size[0]:g} to {size[1]:g} [mm], "
-                             "one per step from the lower end up")
-        lists[key] = [float(x) for x in v]
-    d, L = lists["step_diameters_mm"], lists["step_lengths_mm"]
-    if len(d) != len(L):
-        raise InputError("part.step_lengths_mm", L, f"one length per diameter ({len(d)} diameters given)")
-    fillet = _number(p, "part", "fillet_radius_mm", 0.0, 100.0, default=0.0)
-    shoulders = [abs(a - b) / 2.0 for a, b in zip(d[:-1], d[1:]) if a != b]
-    if fillet > 0.0 and (not shoulders or fillet > min(shoulders) or fillet > min(L)):
-        raise InputError("part.fillet_radius_mm", fillet, "a radius no larger than the smallest shoulder height "
-                         f"({min(shoulders) if shoulders else 0:g} mm) and the shortest step ({min(L):g} mm)")
-    part = FinitePart.stepped([x / 1000.0 for x in d], [x / 1000.0 for x in L], fillet / 1000.0)
-    dims = {"step_diameters_mm": d, "step_lengths_mm": L, "length_mm": float(sum(L)), "fillet_radius_mm": fillet,
-            "_finite": part}
-    return Section.bar(max(d) / 1000.0), dims
-
-
-def _end_media(q: dict, outer: Quenchant, finite, base_dir: Path) -> dict:
-    """[quench] end_faces_medium (a built-in name or CSV, at the quench's bath_c when given),
-    end_face_h_scale (both end faces) and lower_end_h_scale (the lower end, z = 0, e.g. the face
-    that enters the bath first): {"lower_end": Quenchant, "upper_end": Quenchant} or {}."""
-    from .thermal.part_shape import scaled
-
-    keys = [k for k in ("end_faces_medium", "end_face_h_scale", "lower_end_h_scale") if k in q]
-    if not keys:
-        return {}
-    if finite is None:
-        raise InputError(f"quench.{keys[0]}", q[keys[0]], "end-face keys only for a finite part ([part] length_mm or "
-                         "shape = 'stepped_shaft')")
-    end = outer
-    if "end_faces_medium" in q:
-        v = q["end_faces_medium"]
-        if not isinstance(v, str) or not v.strip():
-            raise InputError("quench.end_faces_medium", v, "a built-in quenchant name or a CSV path")
-        end = load_quenchant(v, base_dir, key="quench.end_faces_medium")
-        if "bath_c" in q:
-            end = end.at_bath(outer.bath_c)
-    scale = _number(q, "quench", "end_face_h_scale", 0.0, 20.0, lo_open=True, default=1.0)
-    lower = _number(q, "quench", "lower_end_h_scale", 0.0, 20.0, lo_open=True, default=1.0)
-    return {"lower_end": scaled(end, scale * lower), "upper_end": scaled(end, scale)}
 
 
 def _short(key: str, limit: int = 60) -> str:
@@ -405,11 +319,9 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         path = Path(v) if Path(v).is_absolute() else base_dir / v
         measured = read_measured_jominy(path)
 
-    section, dims = _section(data["part"])
-    finite = dims.pop("_finite", None)
+    section, dims, finite = parse_part(data, _section, _number, _quenchant, base_dir)
     q = data["quench"]
     outer = _quenchant(q, "", base_dir, None)
-    end_media = _end_media(q, outer, finite, base_dir)
     inner = None
     if section.shape == "tube":
         # An immersed tube is quenched in its bore too: same medium unless inner_* keys say otherwise.
@@ -421,7 +333,7 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         k = next(k for k in q if k.startswith("inner_"))
         raise InputError(f"quench.{k}", q[k], "inner_* keys only for shape = 'tube'")
     # The hottest point can only fall below a temperature above the hotter of the two baths.
-    hottest_bath = max([outer.bath_c, inner.bath_c if inner else outer.bath_c] + [e.bath_c for e in end_media.values()])
+    hottest_bath = max(outer.bath_c, inner.bath_c if inner else outer.bath_c)
     end_c = _number(q, "quench", "end_c", -20.0, 700.0, default=max(DEFAULT_END_C, hottest_bath + END_MARGIN_K))
     if end_c <= hottest_bath + 1.0:
         raise InputError("quench.end_c", end_c, f"a temperature above the hottest bath ({hottest_bath:g} C) by more than 1 C")
@@ -462,31 +374,14 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         growth=_number(m, "mesh", "growth", 1.0, 1.5, default=d.growth),
         max_temperature_step_k=_number(m, "mesh", "max_temperature_step_k", 1.0, 100.0, default=d.max_temperature_step_k),
         max_fraction_step=_number(m, "mesh", "max_fraction_step", 0.005, 0.5, default=d.max_fraction_step),
-        max_relative_step=_number(m, "mesh", "max_relative_step", 0.01, 1.0, default=d.max_relative_step),
-    )
-    part_settings = None
-    if finite is not None:
-        from .thermal.part_shape import PartSettings
-
-        pd = PartSettings()
-        part_settings = PartSettings(
-            radial_cells=_number(m, "mesh", "radial_cells", 6, 200, default=pd.radial_cells, integer=True),
-            axial_cells=_number(m, "mesh", "axial_cells", 8, 400, default=pd.axial_cells, integer=True),
-            growth=_number(m, "mesh", "growth", 1.0, 1.5, default=pd.growth),
-            max_temperature_step_k=settings.max_temperature_step_k, max_fraction_step=settings.max_fraction_step,
-            max_relative_step=settings.max_relative_step)
-    elif "radial_cells" in m or "axial_cells" in m:
-        key = "radial_cells" if "radial_cells" in m else "axial_cells"
-        raise InputError(f"mesh.{key}", m[key], "only for a finite part ([part] length_mm or shape = 'stepped_shaft'); "
-                         "a 1-D section takes mesh.cells")
+        max_relative_step=_number(m, "mesh", "max_relative_step", 0.01, 1.0, default=d.max_relative_step))
     return Case(
         title=title, composition=composition, grade=grade, grain_size=grain, austenitize_c=aust, section=section,
         outer=outer, inner=inner, end_c=end_c, model=model, martensite=martensite, temper=temper,
         conductivity_w_mk=k, density_kg_m3=rho, specific_heat_j_kgk=cp, settings=settings,
         requirement=requirement, compare_media=compare_media, dimensions_mm=dims,
         source_text=source_text, source_name=source_name, record=_record(data.get("record", {})),
-        measured_jominy=measured, finite=finite, end_media=end_media, part_settings=part_settings,
-    )
+        measured_jominy=measured, finite=finite)
 
 
 def _did_you_mean(word: str, choices) -> str:

@@ -17,8 +17,8 @@ import typer
 from . import publish
 from .cautions import CAUTION
 from .cli_support import (_activity, _check_out_dir, _emit, _guard, _page, _publish, _quench, _refined,  # noqa: F401
-                          _requirement_from_options, _run_case, _sheet_note, _solve, _units_option, _write_csv,
-                          interrupted)
+                          _requirement_from_options, _run_case, _run_files, _sheet_note, _solve, _units_option,
+                          _write_csv, interrupted)
 from .errors import InputError
 from .version import __version__
 
@@ -74,17 +74,13 @@ def run(
         result = _quench(case, json_out, f"solving the quench of {case_file or 'the quick case'}")
 
         def write(staging):
-            if getattr(result, "finite", False):   # a finite part in (r, z): its own files and maps
-                from .part_maps import write_part_files
-
-                return write_part_files(result, staging, u)
             write_result_h5(result, staging / "result.h5")
             text = profile_csv_text(result)
             (staging / "profile.csv").write_text(us_csv_text(text) if u.us else text, "utf-8")
             hardness_figure(result, staging, u)
             cooling_figure(result, staging, u)
 
-        files = _publish(out, write) if out is not None else []
+        files = _publish(out, _run_files(result, write, u)) if out is not None else []
         summary = result.summary()
         if json_out:
             typer.echo(json.dumps({**summary, "files": [str(f) for f in files], "caution": CAUTION}))

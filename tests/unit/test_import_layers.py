@@ -22,7 +22,7 @@ FLOORS = {
     # 1: steel chemistry and critical temperatures
     "steel": 1,
     # 2: the science layers and their data holders
-    "thermal": 2, "kinetics": 2, "hardness": 2, "case": 2, "results": 2, "results_rz": 2, "sanity": 2, "quick": 2,
+    "thermal": 2, "kinetics": 2, "hardness": 2, "case": 2, "part_case": 2, "results": 2, "results_rz": 2, "sanity": 2, "quick": 2,
     "measured": 2,
     # 3: the questions asked of the science
     "workflows": 3,

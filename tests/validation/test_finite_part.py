@@ -224,7 +224,8 @@ def test_kinetics_converge_with_mesh_and_step():
     # A 30 x 60 mm bar with kinetics: cells doubled and every step limit halved move the profile
     # and the softest points by < 0.5 HRC.
     case = load_case({**OIL_4140, "part": {"shape": "bar", "diameter_mm": 30, "length_mm": 60}})
-    fine_case = dataclasses.replace(case, part_settings=case.part_settings.refined(1))
+    fine_case = dataclasses.replace(case, settings=case.settings.refined(1),
+                                    finite=dataclasses.replace(case.finite, settings=case.finite.settings.refined(1)))
     coarse, fine = simulate([case]), simulate([fine_case])
     coarse, fine = coarse[0], fine[0]
     for p, q in zip(coarse.summary()["points"], fine.summary()["points"]):
@@ -267,13 +268,14 @@ def test_energy_balance_with_transformations():
     # path, independently of the solver) + latent heat released, within 0.5 % (DESIGN.md 3).
     case = load_case({**OIL_4140, "part": {"shape": "stepped_shaft", "step_diameters_mm": [24, 36],
                                            "step_lengths_mm": [30, 30]}})
-    from quenchwise.workflows.finite import part_member
+    from quenchwise.workflows.finite import part_member, part_settings
 
-    geometry = build_geometry([part_member(0, case)], case.part_settings)
+    settings = part_settings(case)
+    geometry = build_geometry([part_member(0, case)], settings)
     state = austenitize(case.composition, case.austenitize_c)
     nodes = SteelNodes.from_states([state], [case.grain_size], list(geometry.member_counts))
     recorder = _Recorder(PhaseStepper(nodes, MODELS[case.model](), geometry.initial_c))
-    run = LocalIntegrator(geometry, case.part_settings).run(recorder)
+    run = LocalIntegrator(geometry, settings).run(recorder)
     final = run.temperature_c[0][-1]
     gained = np.zeros(final.size)
     for n, (t_old, t_solved, before, after) in enumerate(recorder.steps):

@@ -8,6 +8,7 @@ answer does not depend on what else is in the batch.
 
 from __future__ import annotations
 
+from dataclasses import replace
 from typing import Callable
 
 import numpy as np
@@ -31,12 +32,20 @@ def part_member(i: int, case) -> PartMember:
     on the bore of a ring, the end faces' own where [quench] gives them."""
     outer = case.outer
     media = {"side": outer, "shoulder": outer, "lower_end": outer, "upper_end": outer}
-    if case.finite.bore_m > 0 and case.section.inner_quenched:
+    if case.finite.part.bore_m > 0 and case.section.inner_quenched:
         media["bore"] = case.inner
-    media.update(getattr(case, "end_media", {}) or {})
-    return PartMember(name=f"case {case.title or i!r}", part=case.finite, media=media, initial_c=case.austenitize_c,
+    media.update(case.finite.end_media)
+    return PartMember(name=f"case {case.title or i!r}", part=case.finite.part, media=media, initial_c=case.austenitize_c,
                       end_c=case.end_c, conductivity_w_mk=case.conductivity_w_mk, density_kg_m3=case.density_kg_m3,
                       specific_heat_j_kgk=case.specific_heat_j_kgk)
+
+
+def part_settings(case):
+    """The (r, z) numerics of a finite case: its mesh ([mesh] radial_cells, axial_cells, growth)
+    with the step limits of its SolverSettings (so run --fine and [mesh] step keys apply)."""
+    s = case.settings
+    return replace(case.finite.settings, max_temperature_step_k=s.max_temperature_step_k,
+                   max_fraction_step=s.max_fraction_step, max_relative_step=s.max_relative_step)
 
 
 def integrator(geometry, settings):
@@ -51,7 +60,8 @@ def simulate_finite(cases: list, progress: Callable[[float], None] | None = None
     states = [austenitize(c.composition, c.austenitize_c) for c in cases]
     groups: dict[tuple, list[int]] = {}
     for i, c in enumerate(cases):
-        key = (c.part_settings, c.model, c.martensite, radial_faces(c.finite, c.part_settings).tobytes())
+        settings = part_settings(c)
+        key = (settings, c.model, c.martensite, radial_faces(c.finite.part, settings).tobytes())
         groups.setdefault(key, []).append(i)
     results: list = [None] * len(cases)
     done = 0.0
@@ -106,14 +116,14 @@ def _part_result(case, state, geometry, j: int, run, stepper) -> PartResult:
     hv = np.where(solid, hv, np.nan)
     surface_cells, tags = _surface_cells(geometry, j)
     temperature = np.where(solid, run.temperature_c[j], np.nan)
-    field = PartField(part=case.finite, r_m=geometry.r_m, z_m=geometry.z_m[j], dr_m=geometry.dr_m,
+    field = PartField(part=case.finite.part, r_m=geometry.r_m, z_m=geometry.z_m[j], dr_m=geometry.dr_m,
                       dz_m=geometry.dz_m[j], solid=solid, surface_cells=surface_cells, surface_tags=tags,
                       time_s=run.time_s[j], temperature_c=temperature, fractions=fractions, hv=hv,
                       hrc=hrc_from_hv(hv), cooling_rate_700_c_s=rate, heat_out_j=float(run.heat_out_j[j]),
                       latent_j=float(run.latent_j[j]), steps=int(run.steps[j]))
     # The profile line: the radial row(s) at the profile height, linear in z between the two rows.
     z, nr = field.z_m, field.r_m.size
-    zp = case.finite.profile_z_m
+    zp = case.finite.part.profile_z_m
     hi = int(np.clip(np.searchsorted(z, zp), 1, z.size - 1))
     w = float(np.clip((zp - z[hi - 1]) / (z[hi] - z[hi - 1]), 0.0, 1.0))
 
