@@ -130,7 +130,7 @@ def batch_200(ctx, repeat):
             ("(b) ... wall time of the batch", best, "s", None),
             ("(b) ... median of the batch", median, "s", None),
             ("(b) ... CPU time of the batch", cpu, "s", None),
-            ("(b) ... FiPy solves (global steps)", int(steps.max()), "", None),
+            ("(b) ... global steps (one banded solve each)", int(steps.max()), "", None),
             ("(b) ... steps per case, min / mean / max", f"{steps.min()} / {steps.mean():.0f} / {steps.max()}", "", None),
             ("(b) ... nodes in the batch", int(solver.n_nodes), "", None),
             ("(b) ... active node-steps", node_steps, "", None),
@@ -178,7 +178,7 @@ def surface_conditions(ctx, repeat):
     solver = BatchSolver(cases)
     temperature = solver.initial.copy()
     mixture = solver.tables.mixture(np.ones((3, solver.n_nodes)) * np.array([[1.0], [0.0], [0.0]]))
-    k, _, _ = solver.overrides.properties(temperature, mixture)
+    k, _, _ = solver.geometry.overrides.properties(temperature, mixture)
     dx = solver.dx
 
     def one_surface(q, node, area):
@@ -201,9 +201,9 @@ def surface_conditions(ctx, repeat):
         return sink
 
     def vectorized():
-        g, _ = solver._surface(temperature, k, sf.rows)
-        solver._surface(temperature, k, sf.rows)
-        return np.bincount(sf.node, g, minlength=solver.n_nodes) / dx
+        g, _ = solver.integrator.surface_coefficients(temperature, k, sf.rows)
+        solver.integrator.surface_coefficients(temperature, k, sf.rows)
+        return np.bincount(sf.cell, g, minlength=solver.n_nodes) / dx
 
     np.testing.assert_allclose(-loop(), vectorized(), rtol=1e-12)
     reps = 20 * repeat
@@ -304,13 +304,12 @@ def profile_batch():
     profiler.disable()
     stats = pstats.Stats(profiler)
     parts = {("solver.py", "run"): "BatchSolver.run (everything)",
-             ("fipy/terms/term.py", "solve"): "FiPy Term.solve",
-             ("fipy/terms/term.py", "_prepareLinearSystem"): "  FiPy assembly (matrix, RHS)",
-             ("solver.py", "_solve_"): "  linear solve (tridiagonal)",
+             ("integrator.py", "_solve"): "linear system (banded assembly and solve)",
+             ("fipy/terms/term.py", "solve"): "FiPy Term.solve (assembly='fipy' only)",
              ("transformation.py", "advance"): "kinetics PhaseStepper.advance",
              ("properties.py", "evaluate"): "property tables (k, cp, h)",
              ("properties.py", "temperature_for_enthalpy"): "enthalpy -> temperature",
-             ("solver.py", "_surface"): "surface conditions"}
+             ("integrator.py", "surface_coefficients"): "surface conditions"}
     found = {}
     for (path, _, name), (_, _, _, cumulative, _) in stats.stats.items():
         for (suffix, fn), label in parts.items():

@@ -20,30 +20,25 @@ properties and time step (its transient coefficient carries 1/dt of that specime
 for a unit step), so a specimen's answer does not depend on what else is in the batch. A specimen
 whose hottest cell is below end_c is frozen (identity rows).
 
-Time discretization, latent heat and step control are those of solver.BatchSolver (see run()):
-variable-step BDF2 on the sensible enthalpy, started with implicit Euler; after each conduction
-solve the stepper advances the phase state and the latent heat it returns [J/kg] is put back into
-the same step by temperature recovery through the enthalpy of the new phase mixture; the energy
-balance is exact; the next step follows from the largest temperature change and the largest
-fraction change per step. This module does not import the kinetics package: it drives any object
-with ``advance(t_old, t_new, dt) -> (latent J/kg, largest fraction change)`` and ``fractions()``.
+The time loop (enthalpy BDF2, latent-heat recovery, exact energy balance, step control and the
+step guard) is the shared one of thermal/integrator.py; this module only builds the specimen's
+Geometry. It does not import the kinetics package: it drives any object with
+``advance(t_old, t_new, dt) -> (latent J/kg, largest fraction change)`` and ``fractions()``.
 """
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 from typing import Callable
 
 import fipy as fp
 import numpy as np
-from fipy.solvers.scipy import LinearLUSolver
 from scipy.optimize import brentq
 
-from .properties import DENSITY_KG_M3, ConstantOverrides, PropertyTables, group_weights
+from .integrator import Geometry, Integrator, rate_through
+from .properties import DENSITY_KG_M3, ConstantOverrides
 from .quenchants import Quenchant
-from .stepping import close_step, step_factor
-from .solver import SolverError
+from .surfaces import Surfaces
 
 #: ASTM A255 reading depth: hardness is read on two flats ground 0.015 in (0.38 mm) deep along
 #: the bar (memory); ISO 642 asks for 0.4-0.5 mm (memory). Readings are taken 0.4 mm below the side.
@@ -120,6 +115,7 @@ class EndQuenchSettings:
     radial_growth: float = 1.2          # cell width ratio from the side towards the axis
     max_temperature_step_k: float = 12.0
     max_fraction_step: float = 0.05
+    max_relative_step: float = 0.15
     first_step_s: float = 0.002
     max_step_growth: float = 1.5
     max_steps: int = 20000
@@ -196,7 +192,8 @@ def graded_widths(total_m: float, cells: int, first_m: float) -> np.ndarray:
 class EndQuenchSolver:
     """Solve a batch of end-quench specimens in one FiPy system (see module docstring)."""
 
-    def __init__(self, bars: list[EndQuenchBar], settings: EndQuenchSettings = EndQuenchSettings()):
+    def __init__(self, bars: list[EndQuenchBar], settings: EndQuenchSettings = EndQuenchSettings(),
+                 assembly: str = "banded"):
         if not bars:
             raise ValueError("a batch needs at least one specimen")
         d0, l0 = bars[0].diameter_m, bars[0].length_m
@@ -265,174 +262,40 @@ class EndQuenchSolver:
         self.initial = per_cell("initial_c", np.nan)
         self.end_c = np.array([b.end_c for b in self.bars], dtype=float)
 
-        self.T = fp.CellVariable(mesh=self.mesh, value=self.initial.copy(), hasOld=True)
-        self.transient = fp.CellVariable(mesh=self.mesh, value=1.0)
-        self.conductance = fp.FaceVariable(mesh=self.mesh, value=0.0)
-        self.sink = fp.CellVariable(mesh=self.mesh, value=0.0)
-        self.source = fp.CellVariable(mesh=self.mesh, value=0.0)
-        self.equation = (fp.TransientTerm(coeff=self.transient)
-                         == fp.DiffusionTerm(coeff=self.conductance) + fp.ImplicitSourceTerm(coeff=self.sink)
-                         + self.source)
-        # Direct solve every step (criterion "initial": see solver.BatchSolver).
-        self.linear_solver = LinearLUSolver(tolerance=1e-12, criterion="initial")
-        self.tables = PropertyTables()
-        self._surface_table()
-
-    # -- pieces of one step -------------------------------------------------------------------
-    def _surface_table(self):
-        """Every surface face once: its cell, area, centre-to-face distance, bar and quenchant."""
-        cells, area, half, bar, media = [], [], [], [], []
-        nr, nz = self.nr, self.nz
+        rows = []
         for b, spec in enumerate(self.bars):
-            groups = [(self.end_cells[b * nr:(b + 1) * nr], self.end_area[b * nr:(b + 1) * nr], "z", spec.jet)]
+            ends = slice(b * nr, (b + 1) * nr)
+            faces = [(self.end_cells[ends], self.end_area[ends], self.dz_cell, spec.jet, "end")]
             if spec.air is not None:
-                groups.append((self.top_cells[b * nr:(b + 1) * nr], self.end_area[b * nr:(b + 1) * nr], "z", spec.air))
-                groups.append((self.side_cells[b * nz:(b + 1) * nz], self.side_area[b * nz:(b + 1) * nz], "r", spec.air))
-            for c, a, axis, q in groups:
-                cells.append(c)
-                area.append(a)
-                half.append(0.5 * (self.dz_cell[c] if axis == "z" else self.dr_cell[c]))
-                bar.append(np.full(c.size, b))
-                media.append((q, c.size))
-        self.sf_cell = np.concatenate(cells)
-        self.sf_area = np.concatenate(area)
-        self.sf_half = np.concatenate(half)
-        self.sf_bar = np.concatenate(bar)
-        self.sf_groups = []
-        at = 0
-        for q, n in media:
-            self.sf_groups.append((slice(at, at + n), q))
-            at += n
-        self.sf_bath = np.concatenate([np.full(n, q.bath_c) for q, n in media])
-
-    def _surfaces(self, temperature, k):
-        """Film in series with the half cell, h at the estimated surface temperature (one
-        fixed-point pass): coefficient x area of every surface face."""
-        g = k[self.sf_cell] / self.sf_half
-        t_cell = temperature[self.sf_cell]
-        out = np.empty(self.sf_cell.size)
-        for sl, q in self.sf_groups:
-            h = q.htc(t_cell[sl])
-            t_surf = (g[sl] * t_cell[sl] + h * q.bath_c) / (g[sl] + h)
-            h = np.maximum(q.htc(t_surf), 1e-12)
-            out[sl] = 1.0 / (1.0 / h + 1.0 / g[sl])
-        return out * self.sf_area
-
-    def _face_conductance(self, k, active_cell):
-        values = np.zeros(self.mesh.numberOfFaces)
-        a, b = self.zf_a, self.zf_b
-        kz = (0.5 * (self.dz_cell[a] + self.dz_cell[b])) / (0.5 * self.dz_cell[a] / k[a] + 0.5 * self.dz_cell[b] / k[b])
-        values[self.zf_id] = np.where(active_cell[a], kz, 0.0)
-        if self.rf_a.size:
-            a, b = self.rf_a, self.rf_b
-            kr = (0.5 * (self.dr_cell[a] + self.dr_cell[b])) / (0.5 * self.dr_cell[a] / k[a] + 0.5 * self.dr_cell[b] / k[b])
-            values[self.rf_id] = np.where(active_cell[a], kr, 0.0)
-        return values
+                faces.append((self.top_cells[ends], self.end_area[ends], self.dz_cell, spec.air, "far end"))
+                faces.append((self.side_cells[b * nz:(b + 1) * nz], self.side_area[b * nz:(b + 1) * nz], self.dr_cell,
+                              spec.air, "side"))
+            for cells, areas, widths, medium, tag in faces:
+                rows += [(b, c, a, 0.5 * widths[c], medium, tag) for c, a in zip(cells, areas)]
+        self.surfaces = Surfaces(rows)
+        z_half = 0.5 * self.dz_cell
+        r_half = 0.5 * self.dr_cell
+        face_cells = np.concatenate([np.column_stack([self.zf_a, self.zf_b]), np.column_stack([self.rf_a, self.rf_b])])
+        face_half = np.concatenate([np.column_stack([z_half[self.zf_a], z_half[self.zf_b]]),
+                                    np.column_stack([r_half[self.rf_a], r_half[self.rf_b]])])
+        self.geometry = Geometry(
+            mesh=self.mesh, member_starts=self.starts, member_counts=np.full(nb, nr * nz),
+            capacity=np.ones(n), density_kg_m3=self.density, initial_c=self.initial, end_c=self.end_c,
+            overrides=self.overrides, face_cells=face_cells.astype(int),
+            face_ids=np.concatenate([self.zf_id, self.rf_id]).astype(int), face_half_m=face_half,
+            face_weight=np.ones(len(face_cells)), surfaces=self.surfaces,
+            names=[f"specimen {b.name!r}" for b in self.bars])
+        self.integrator = Integrator(self.geometry, settings, assembly)
 
     def run(self, stepper=None, progress: Callable[[float], None] | None = None) -> list[EndQuenchHistory]:
-        """Integrate every specimen until its hottest cell is below its end temperature.
-
-        The step is that of solver.BatchSolver, energy-exact: BDF2 on the sensible enthalpy
-        (the history term is the previous step's conduction enthalpy), coefficients at the
-        temperatures extrapolated to the end of the step (cp as the enthalpy secant), conduction
-        enthalpy and latent heat turned into temperature through the exact enthalpy of the phase
-        mixture, and the heat through each surface face integrated by the same BDF2 rule; so
-        heat_out_j = drop of sensible enthalpy + latent_j to round-off.
-        """
-        s = self.settings
-        nb, n = self.nb, self.n_cells
-        bar_of = self.bar_of_cell
-        temperature = self.initial.copy()
-        fractions = stepper.fractions() if stepper is not None else {"austenite": np.ones(n)}
-        mixture = self.tables.mixture(group_weights(fractions, n))
-        k, cp, enthalpy = self.overrides.properties(temperature, mixture)
-        dt_bar = np.full(nb, s.first_step_s)
-        t_bar = np.zeros(nb)
-        active = np.ones(nb, dtype=bool)
-        steps = np.zeros(nb, dtype=int)
-        times = [[0.0] for _ in range(nb)]
-        temps = [[temperature[a:a + self.cells_per_bar].copy()] for a in self.starts]
-        heat_face = np.zeros(self.sf_cell.size)
-        q_prev = np.zeros(self.sf_cell.size)
-        latent_total = np.zeros(nb)
-        start_span = np.maximum(self.initial[self.starts] - self.end_c, 1e-9)
-        e_prev = np.zeros(n)
-        dt_prev = np.zeros(nb)
-        last_change = np.zeros(n)
-        mass = self.density * self.volume
-        while active.any():
-            active_cell = active[bar_of]
-            dt_cell = np.where(active_cell, dt_bar[bar_of], 0.0)
-            w_bar = np.where(dt_prev > 0, dt_bar / np.where(dt_prev > 0, dt_prev, 1.0), 0.0)
-            a0_bar = (1.0 + 2.0 * w_bar) / (1.0 + w_bar)
-            b_bar = w_bar * w_bar / (1.0 + w_bar)
-            a0, b = a0_bar[bar_of], b_bar[bar_of]
-            extrapolated = temperature + w_bar[bar_of] * last_change
-            k, _, h_end = self.overrides.properties(extrapolated, mixture)
-            rise = extrapolated - temperature
-            moved = np.abs(rise) > 1e-6
-            cp_step = np.where(moved, (h_end - enthalpy) / np.where(moved, rise, 1.0), cp)
-            rho_cp = self.density * cp_step
-            self.transient.setValue(np.where(active_cell, a0 * rho_cp / np.where(active_cell, dt_cell, 1.0), rho_cp))
-            old_eff = np.where(active_cell, temperature + b * e_prev / (a0 * cp_step), temperature)
-            self.conductance.setValue(self._face_conductance(k, active_cell))
-            g = np.where(active[self.sf_bar], self._surfaces(extrapolated, k), 0.0)
-            vol = self.volume[self.sf_cell]
-            self.sink.setValue(-np.bincount(self.sf_cell, g / vol, minlength=n))
-            self.source.setValue(np.bincount(self.sf_cell, g * self.sf_bath / vol, minlength=n))
-            self.T.setValue(old_eff)
-            self.T.updateOld()
-            self.equation.solve(var=self.T, dt=1.0, solver=self.linear_solver)
-            solved = np.where(active_cell, np.array(self.T.value, dtype=float), temperature)
-            # Heat through each surface face, BDF2-integrated like the enthalpy.
-            face_bar = self.sf_bar
-            q = (dt_bar[face_bar] * g * (solved[self.sf_cell] - self.sf_bath) + b_bar[face_bar] * q_prev) / a0_bar[face_bar]
-            q = np.where(active[face_bar], q, 0.0)
-            q_prev = np.where(active[face_bar], q, q_prev)
-            heat_face += q
-            e_now = np.where(active_cell, cp_step * (solved - temperature), 0.0)
-            new = np.where(active_cell, self.overrides.temperature_for(enthalpy + e_now, mixture, solved), temperature)
-            change = np.zeros(n)
-            if stepper is not None:
-                latent, change = stepper.advance(temperature, new, dt_cell)
-                latent = np.where(active_cell, latent, 0.0)
-                change = np.where(active_cell, change, 0.0)
-                latent_total += np.bincount(bar_of, latent * mass, minlength=nb)
-                fractions = stepper.fractions()
-                self.tables.mixture(group_weights(fractions, n), out=mixture)
-                if np.any(latent != 0.0):     # temperature recovery at the new phase mixture
-                    _, cp_new, h_new = self.overrides.properties(new, mixture)
-                    guess = new + latent / cp_new
-                    new = np.where(latent != 0.0, self.overrides.temperature_for(h_new + latent, mixture, guess), new)
-            if not np.all(np.isfinite(new)):
-                bad = int(bar_of[np.flatnonzero(~np.isfinite(new))[0]])
-                raise SolverError(f"specimen {self.bars[bad].name!r}: temperature not finite at t = {t_bar[bad]:.3g} s")
-            d_temp = np.abs(new - temperature)
-            last_change = np.where(active_cell, new - temperature, last_change)
-            e_prev = np.where(active_cell, e_now, e_prev)
-            dt_prev = np.where(active, dt_bar, dt_prev)
-            temperature = new
-            k, cp, enthalpy = self.overrides.properties(temperature, mixture)
-            t_bar = np.where(active, t_bar + dt_bar, t_bar)
-            steps += active
-            hottest = np.maximum.reduceat(temperature, self.starts)
-            for bb in np.flatnonzero(active):
-                a = self.starts[bb]
-                times[bb].append(t_bar[bb])
-                temps[bb].append(temperature[a:a + self.cells_per_bar].copy())
-            d_t = np.maximum.reduceat(d_temp, self.starts)
-            d_f = np.maximum.reduceat(change, self.starts)
-            dt_bar = np.where(active, dt_bar * step_factor(s, d_t, d_f), dt_bar)
-            active = close_step(
-                active, hottest, self.end_c, steps, t_bar, s, self.initial[self.starts], start_span, progress,
-                lambda b: (f"specimen {self.bars[b].name!r}: not below {self.end_c[b]:g} C after {steps[b]} steps, "
-                           f"t = {t_bar[b]:.4g} s (hottest cell {hottest[b]:.1f} C)"))
-
-        heat_out = np.bincount(self.sf_bar, heat_face, minlength=nb)
+        """Integrate every specimen until its hottest cell is below its end temperature (the shared
+        integrator: heat_out_j = drop of sensible enthalpy + latent_j to round-off)."""
+        out = self.integrator.run(stepper, progress)
         return [
             EndQuenchHistory(name=bar.name, r_m=self.r_c.copy(), z_m=self.z_c.copy(), dr_m=self.dr.copy(),
-                             dz_m=self.dz.copy(), time_s=np.array(times[b]), temperature_c=np.array(temps[b]),
-                             heat_out_j=float(heat_out[b]), latent_j=float(latent_total[b]), steps=int(steps[b]))
+                             dz_m=self.dz.copy(), time_s=out.time_s[b], temperature_c=out.temperature_c[b],
+                             heat_out_j=float(out.heat_out_j[b]), latent_j=float(out.latent_j[b]),
+                             steps=int(out.steps[b]))
             for b, bar in enumerate(self.bars)
         ]
 
@@ -440,13 +303,4 @@ class EndQuenchSolver:
 def rate_at(history: EndQuenchHistory, temperature_c: float = 700.0) -> np.ndarray:
     """Cooling rate of every cell as it first passed temperature_c [K/s], from the stored history
     (runs without a stepper); NaN where the cell never crossed it."""
-    t, temp = history.time_s, history.temperature_c
-    above = temp[:-1] > temperature_c
-    below = temp[1:] <= temperature_c
-    cross = above & below
-    out = np.full(temp.shape[1], math.nan)
-    has = cross.any(axis=0)
-    i = np.argmax(cross, axis=0)
-    j = np.flatnonzero(has)
-    out[j] = (temp[i[j], j] - temp[i[j] + 1, j]) / (t[i[j] + 1] - t[i[j]])
-    return out
+    return rate_through(history.time_s, history.temperature_c, temperature_c)

@@ -1,4 +1,4 @@
-"""Adaptive time-step control shared by the section solver and the end-quench solver."""
+"""Adaptive time-step control and end-of-step bookkeeping of the integrator (thermal/integrator.py)."""
 
 from __future__ import annotations
 

@@ -1,4 +1,4 @@
-"""The quenched surfaces of a batch as arrays, for the section solver (thermal/solver.py)."""
+"""The cooled surfaces of a batch as arrays, for the integrator (thermal/integrator.py)."""
 
 from __future__ import annotations
 
@@ -8,26 +8,38 @@ from .quenchants import STEFAN_BOLTZMANN
 
 
 class Surfaces:
-    """Every quenched surface of a batch as arrays: node, area weight, bath, emissivity and the
-    h(T) tables padded to a common length (the last point repeated)."""
+    """Every cooled boundary face of a batch once, as arrays: member (body), cell, area (in the
+    mesh's measure), distance from the cell centre to the face, tag (e.g. "outer", "inner", "end",
+    "side"), bath, emissivity and the h(T) tables padded to a common length (the last point
+    repeated).
 
-    def __init__(self, entries):
-        # entries: (case index, node, area weight, quenchant, is_outer)
-        self.case = np.array([e[0] for e in entries], dtype=int)
-        self.node = np.array([e[1] for e in entries], dtype=int)
-        self.area = np.array([e[2] for e in entries], dtype=float)
-        self.outer = np.array([e[4] for e in entries], dtype=bool)
-        quenchants = [e[3] for e in entries]
+    rows: (member, cell, area, half_m, quenchant, tag) per face.
+    """
+
+    def __init__(self, rows):
+        rows = list(rows)
+        if not rows:
+            raise ValueError("a batch needs at least one cooled surface")
+        self.member = np.array([r[0] for r in rows], dtype=int)
+        self.cell = np.array([r[1] for r in rows], dtype=int)
+        self.area = np.array([r[2] for r in rows], dtype=float)
+        self.half_m = np.array([r[3] for r in rows], dtype=float)
+        self.tag = np.array([r[5] for r in rows])
+        quenchants = [r[4] for r in rows]
         self.bath = np.array([q.bath_c for q in quenchants], dtype=float)
         self.emissivity = np.array([q.emissivity for q in quenchants], dtype=float)
         width = max(len(q.surface_c) for q in quenchants)
-        self.table_t = np.empty((len(entries), width))
-        self.table_h = np.empty((len(entries), width))
+        self.table_t = np.empty((len(rows), width))
+        self.table_h = np.empty((len(rows), width))
+        # Quenchants are shared by many faces: pad each distinct table once.
+        padded = {}
         for i, q in enumerate(quenchants):
-            t, h = np.asarray(q.surface_c, dtype=float), np.asarray(q.htc_w_m2k, dtype=float)
-            self.table_t[i] = np.concatenate([t, np.full(width - t.size, t[-1])])
-            self.table_h[i] = np.concatenate([h, np.full(width - h.size, h[-1])])
-        self.rows = np.arange(len(entries))
+            if id(q) not in padded:
+                t, h = np.asarray(q.surface_c, dtype=float), np.asarray(q.htc_w_m2k, dtype=float)
+                padded[id(q)] = (np.concatenate([t, np.full(width - t.size, t[-1])]),
+                                 np.concatenate([h, np.full(width - h.size, h[-1])]))
+            self.table_t[i], self.table_h[i] = padded[id(q)]
+        self.rows = np.arange(len(rows))
 
     def htc(self, surface_c, rows):
         """h of each listed surface at its surface temperature: the same as Quenchant.htc (linear
