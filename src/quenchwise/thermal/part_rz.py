@@ -85,6 +85,20 @@ class PartGeometry:
                        "overrides", "face_cells", "face_ids", "face_half_m", "face_weight", "names", "solid",
                        "record_surface_row")
 
+    def integrator_geometry(self):
+        """The shared integrator's Geometry (thermal/integrator.py) of this batch."""
+        from .integrator import Geometry
+        from .surfaces import Surfaces
+
+        return Geometry(surfaces=Surfaces(self.surface_rows), **{k: getattr(self, k) for k in self.CONTRACT_FIELDS})
+
+
+def integrate(geometry: PartGeometry, settings, stepper=None, progress=None, assembly: str = "banded"):
+    """Run a batch of parts with the shared integrator: Integrator(geometry, settings).run(...)."""
+    from .integrator import Integrator
+
+    return Integrator(geometry.integrator_geometry(), settings, assembly=assembly).run(stepper, progress)
+
 
 def radial_faces(part: FinitePart, settings: PartSettings) -> np.ndarray:
     """Radial cell faces [m] from the axis (or the bore) to the largest radius: one segment per

@@ -18,7 +18,7 @@ from ..hardness.tempering import tempered_hardness_hv
 from ..kinetics import MODELS, PhaseStepper, SteelNodes
 from ..results_rz import PartField, PartResult
 from ..steel import austenitize
-from ..thermal.part_rz import PartMember, build_geometry, radial_faces
+from ..thermal.part_rz import PartMember, build_geometry, integrate, radial_faces
 from ..thermal.solver import CaseHistory
 from .batch import ROOM_C, _add_hardness_extras
 
@@ -48,13 +48,6 @@ def part_settings(case):
                    max_fraction_step=s.max_fraction_step, max_relative_step=s.max_relative_step)
 
 
-def integrator(geometry, settings):
-    """The integrator that runs a PartGeometry (the local driver with the shared contract)."""
-    from ..thermal.part_local import LocalIntegrator
-
-    return LocalIntegrator(geometry, settings)
-
-
 def simulate_finite(cases: list, progress: Callable[[float], None] | None = None) -> list[PartResult]:
     """A PartResult for every finite case, in order (see the module docstring)."""
     states = [austenitize(c.composition, c.austenitize_c) for c in cases]
@@ -74,7 +67,7 @@ def simulate_finite(cases: list, progress: Callable[[float], None] | None = None
             stepper = PhaseStepper(nodes, MODELS[model](), geometry.initial_c)
         share = len(members) / len(cases)
         report = None if progress is None else (lambda f, base=done, share=share: progress(base + share * f))
-        run = integrator(geometry, settings).run(stepper, report)
+        run = integrate(geometry, settings, stepper, report)
         done += share
         if stepper is not None:
             # Left to cool to room temperature after the quench (as workflows.batch): only the
