@@ -319,7 +319,7 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         path = Path(v) if Path(v).is_absolute() else base_dir / v
         measured = read_measured_jominy(path)
 
-    section, dims, finite = parse_part(data, _section, _number, _quenchant, base_dir)
+    section, dims, finite = parse_part(data, _section, _number, base_dir)
     q = data["quench"]
     outer = _quenchant(q, "", base_dir, None)
     inner = None

@@ -24,19 +24,33 @@ FINITE_KEYS = {"part": {"length_mm", "step_diameters_mm", "step_lengths_mm", "fi
 
 @dataclass(frozen=True)
 class FiniteSpec:
-    """What a case adds for a finite part: its shape, the quenchants of its end faces
-    ({"lower_end": Quenchant, "upper_end": Quenchant}; empty: the outer medium) and its (r, z)
-    mesh (PartSettings; the step limits come from the case's SolverSettings at solve time)."""
+    """What a case adds for a finite part: its shape, its end faces' quench and its (r, z) mesh
+    (PartSettings; the step limits come from the case's SolverSettings at solve time).
+
+    The end faces take end_medium (None: the case's outer medium, whatever it is, so compare and
+    size vary them with it) with its h times end_scale, and the lower end (z = 0) also times
+    lower_scale."""
 
     part: FinitePart
-    end_media: dict = field(default_factory=dict)
+    end_medium: object = None
+    end_scale: float = 1.0
+    lower_scale: float = 1.0
     settings: PartSettings = PartSettings()
 
+    def end_media(self, outer) -> dict:
+        """{"lower_end": Quenchant, "upper_end": Quenchant} for the given outer medium."""
+        end = outer if self.end_medium is None else self.end_medium.at_bath(outer.bath_c)
+        return {"lower_end": scaled(end, self.end_scale * self.lower_scale), "upper_end": scaled(end, self.end_scale)}
 
-def parse_part(data: dict, section, number, quenchant, base_dir: Path):
+    @property
+    def has_own_ends(self) -> bool:
+        return self.end_medium is not None or self.end_scale != 1.0 or self.lower_scale != 1.0
+
+
+def parse_part(data: dict, section, number, base_dir: Path):
     """(Section, dimensions, FiniteSpec or None) of [part], with [quench]'s end-face keys and
-    [mesh]'s radial_cells / axial_cells; section, number and quenchant are case._section,
-    case._number and case._quenchant. The 1-D section refuses the finite-part keys."""
+    [mesh]'s radial_cells / axial_cells; section and number are case._section and case._number.
+    The 1-D section refuses the finite-part keys."""
     p, q, m = data["part"], data["quench"], data.get("mesh", {})
     shape = p.get("shape")
     if shape != "stepped_shaft" and "length_mm" not in p:
@@ -50,14 +64,13 @@ def parse_part(data: dict, section, number, quenchant, base_dir: Path):
         return sec, dims, None
     sec, dims = finite_section(p, shape, section, number)
     part = dims.pop("_finite")
-    outer = quenchant(q, "", base_dir, None) if isinstance(q, dict) else None
-    ends = end_media(q, outer, part, base_dir, number) if outer is not None else {}
+    medium, scale, lower = end_faces(q, base_dir, number)
     d = PartSettings()
     settings = PartSettings(
         radial_cells=number(m, "mesh", "radial_cells", 6, 200, default=d.radial_cells, integer=True),
         axial_cells=number(m, "mesh", "axial_cells", 8, 400, default=d.axial_cells, integer=True),
         growth=number(m, "mesh", "growth", 1.0, 1.5, default=d.growth))
-    return sec, dims, FiniteSpec(part, ends, settings)
+    return sec, dims, FiniteSpec(part, medium, scale, lower, settings)
 
 
 #: Largest number of steps of a stepped shaft.
@@ -109,23 +122,16 @@ def finite_section(p: dict, shape: str, section, number) -> tuple[Section, dict]
     return Section.bar(max(d) / 1000.0), dims
 
 
-def end_media(q: dict, outer, finite, base_dir: Path, number) -> dict:
-    """[quench] end_faces_medium (a built-in name or CSV, run at the outer medium's bath: one tank),
-    end_face_h_scale (both end faces) and lower_end_h_scale (the lower end, z = 0, e.g. the face
-    that enters the bath first): {"lower_end": Quenchant, "upper_end": Quenchant} or {}."""
-    keys = [k for k in ("end_faces_medium", "end_face_h_scale", "lower_end_h_scale") if k in q]
-    if not keys:
-        return {}
-    if finite is None:
-        raise InputError(f"quench.{keys[0]}", q[keys[0]], "end-face keys only for a finite part ([part] length_mm or "
-                         "shape = 'stepped_shaft')")
-    end = outer
+def end_faces(q: dict, base_dir: Path, number) -> tuple:
+    """[quench] end_faces_medium (a built-in name or CSV, run at the outer medium's bath: one
+    tank), end_face_h_scale (both end faces) and lower_end_h_scale (the lower end, z = 0, e.g. the
+    face that enters the bath first): (medium or None, scale, lower scale)."""
+    end = None
     if "end_faces_medium" in q:
         v = q["end_faces_medium"]
         if not isinstance(v, str) or not v.strip():
             raise InputError("quench.end_faces_medium", v, "a built-in quenchant name or a CSV path")
-        end = load_quenchant(v, base_dir, key="quench.end_faces_medium").at_bath(outer.bath_c)
+        end = load_quenchant(v, base_dir, key="quench.end_faces_medium")
     scale = number(q, "quench", "end_face_h_scale", 0.0, 20.0, lo_open=True, default=1.0)
     lower = number(q, "quench", "lower_end_h_scale", 0.0, 20.0, lo_open=True, default=1.0)
-    return {"lower_end": scaled(end, scale * lower), "upper_end": scaled(end, scale)}
-
+    return end, scale, lower

@@ -105,8 +105,8 @@ class PartResult(Result):
         s["profile_line"] = {"z_mm": round(part.profile_z_m * 1000.0, 3),
                              "what": "radius at mid-length" if part.kind != "stepped_shaft"
                              else "radius at the mid-length of the thickest step"}
-        ends = self.case.finite.end_media
-        if ends:
+        if self.case.finite.has_own_ends:
+            ends = self.case.finite.end_media(self.case.outer)
             s["quench"]["lower_end"] = ends["lower_end"].name
             s["quench"]["upper_end"] = ends["upper_end"].name
         s["softest"] = self.softest()

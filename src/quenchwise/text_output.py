@@ -170,9 +170,22 @@ def size_text(title: str, d: dict, medium_name: str, files: list, units: Units |
               + (f"({L(big['next_larger_failing_mm'])} does not meet it)" if big["next_larger_failing_mm"] else "(largest tried)")
               if big["largest_passing_mm"] is not None else f"no {big['dimension'].replace('_mm', '')} tried meets it in {medium_name}")
              + f"; this part: {L(big['case_size_mm'])}",
+             *length_lines(d, medium_name, L),
              SEVERITY_NOTE,
              "wrote   " + ", ".join(str(f) for f in files)]
     return "\n".join(lines)
+
+
+def length_lines(d: dict, medium_name: str, L) -> list[str]:
+    """A finite part's largest length in the size answer (none for a 1-D section)."""
+    g = d.get("largest_length")
+    if g is None:
+        return []
+    if g["largest_passing_mm"] is None:
+        return [f"no length tried meets it in {medium_name}; this part: {L(g['case_length_mm'])}"]
+    tail = (f"({L(g['next_longer_failing_mm'])} does not meet it)" if g["next_longer_failing_mm"] is not None
+            else "(longest tried: any length meets it)")
+    return [f"largest length in {medium_name}: {L(g['largest_passing_mm'])} {tail}; this part: {L(g['case_length_mm'])}"]
 
 
 def wrote(files: list) -> str:

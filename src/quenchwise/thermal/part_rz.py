@@ -94,10 +94,17 @@ class PartGeometry:
 
 
 def integrate(geometry: PartGeometry, settings, stepper=None, progress=None, assembly: str = "banded"):
-    """Run a batch of parts with the shared integrator: Integrator(geometry, settings).run(...)."""
+    """Run a batch of parts with the shared integrator: Integrator(geometry, settings).run(...).
+
+    BLAS runs on one thread here: the banded Cholesky of an (r, z) batch (bandwidth = radial
+    cells) is small, and OpenBLAS's threads made it 15-30 times slower on a busy 2-core machine
+    (12.8 ms instead of 0.4 ms per solve of a 50 x 100 mm bar; benchmarks/README.md)."""
+    from threadpoolctl import threadpool_limits
+
     from .integrator import Integrator
 
-    return Integrator(geometry.integrator_geometry(), settings, assembly=assembly).run(stepper, progress)
+    with threadpool_limits(limits=1, user_api="blas"):
+        return Integrator(geometry.integrator_geometry(), settings, assembly=assembly).run(stepper, progress)
 
 
 def radial_faces(part: FinitePart, settings: PartSettings) -> np.ndarray:

@@ -23,6 +23,18 @@ from ..thermal.solver import CaseHistory
 from .batch import ROOM_C, _add_hardness_extras
 
 
+#: Largest number of cells solved as one batch (a band of 200 heats of a 50 x 100 mm bar would keep
+#: about 0.5 GB of temperature histories in one); larger batches are split, which costs little since
+#: the step cost grows with the cells anyway.
+MAX_BATCH_CELLS = 40000
+
+
+def _cells(case, settings) -> int:
+    from ..thermal.part_rz import axial_widths
+
+    return (radial_faces(case.finite.part, settings).size - 1) * axial_widths(case.finite.part, settings).size
+
+
 def is_finite(case) -> bool:
     return getattr(case, "finite", None) is not None
 
@@ -34,7 +46,7 @@ def part_member(i: int, case) -> PartMember:
     media = {"side": outer, "shoulder": outer, "lower_end": outer, "upper_end": outer}
     if case.finite.part.bore_m > 0 and case.section.inner_quenched:
         media["bore"] = case.inner
-    media.update(case.finite.end_media)
+    media.update(case.finite.end_media(outer))
     return PartMember(name=f"case {case.title or i!r}", part=case.finite.part, media=media, initial_c=case.austenitize_c,
                       end_c=case.end_c, conductivity_w_mk=case.conductivity_w_mk, density_kg_m3=case.density_kg_m3,
                       specific_heat_j_kgk=case.specific_heat_j_kgk)
@@ -56,9 +68,16 @@ def simulate_finite(cases: list, progress: Callable[[float], None] | None = None
         settings = part_settings(c)
         key = (settings, c.model, c.martensite, radial_faces(c.finite.part, settings).tobytes())
         groups.setdefault(key, []).append(i)
+    # Batches bounded in cells: the integrator keeps every member's temperature history.
+    chunks: dict[tuple, list[int]] = {}
+    for key, members in groups.items():
+        per = max(1, MAX_BATCH_CELLS // _cells(cases[members[0]], key[0]))
+        for k in range(0, len(members), per):
+            chunks[key + (k,)] = members[k:k + per]
+    groups = chunks
     results: list = [None] * len(cases)
     done = 0.0
-    for (settings, model, martensite, _), members in groups.items():
+    for (settings, model, martensite, _, _), members in groups.items():
         geometry = build_geometry([part_member(i, cases[i]) for i in members], settings)
         stepper = None
         if model != "none":
@@ -154,3 +173,19 @@ def _rate_700(time_s, temperature_c) -> np.ndarray:
     h = _H()
     h.time_s, h.temperature_c = time_s, temperature_c
     return rate(h)
+
+
+def largest_length(case, requirement, progress=None):
+    """The largest length of a finite part (its section kept; a stepped shaft's steps scaled
+    alike) that meets the requirement along its profile line, as size.largest_size brackets a
+    section: one batch over lengths from 0.5 to 20 diameters (the parts share one radial grid,
+    so they stack on one mesh), refined by a second. Ends cool the middle of a short part, so
+    the answer is a length below which the part meets it; passing at the longest length means
+    any length does (the infinite section meets it)."""
+    from .size import COARSE_POINTS, _margins, _refine
+    from .variants import with_length
+
+    diameter_mm = 2000.0 * case.finite.part.outer_m
+    grid = np.geomspace(0.5 * diameter_mm, 20.0 * diameter_mm, COARSE_POINTS)
+    return _refine(grid, _margins([with_length(case, x) for x in grid], requirement, progress),
+                   lambda x: with_length(case, x), requirement, False, True, progress)

@@ -111,6 +111,7 @@ class SizingAnswer:
     size: Bracket
     size_label: str
     case_size_mm: float
+    length: Bracket | None = None     # a finite part: its largest length (workflows.finite.largest_length)
 
     def as_dict(self) -> dict:
         sev = self.severity
@@ -124,6 +125,9 @@ class SizingAnswer:
             "quenchants": self.quenchants,
             "largest_size": {"dimension": self.size_label, "largest_passing_mm": rounded(self.size.passing, 2),
                              "next_larger_failing_mm": rounded(self.size.failing, 2), "case_size_mm": rounded(self.case_size_mm, 2)},
+            **({} if self.length is None else {"largest_length": {
+                "largest_passing_mm": rounded(self.length.passing, 2), "next_longer_failing_mm": rounded(self.length.failing, 2),
+                "case_length_mm": rounded(1000.0 * self.case.finite.part.length_m, 2)}}),
         }
 
 
@@ -146,5 +150,10 @@ def size(case: Case, requirement: Requirement | None = None, media: list[Quencha
     rows = sorted(comparison.rows, key=lambda r: (r["equivalent_h"] is None, r["equivalent_h"] or 0.0))
     stage[0] = 2
     biggest = largest_size(case, req, sub)
-    return SizingAnswer(case, req, severity, rows, biggest, size_label(case), case_size_mm(case))
+    length = None
+    if getattr(case, "finite", None) is not None:   # a finite part: also its largest length at this section
+        from .finite import largest_length
+
+        length = largest_length(case, req, sub)
+    return SizingAnswer(case, req, severity, rows, biggest, size_label(case), case_size_mm(case), length)
 
