@@ -175,3 +175,51 @@ def write_part_files(result, out_dir: Path, units=None) -> None:
     cooling_figure(result, out_dir, u)
     hardness_map(result, out_dir, u)
     martensite_map(result, out_dir, u)
+
+
+def sheet_map(ax, result, units=None) -> None:
+    """The part block of the hardening sheet for a finite part: its HRC map in the half-section
+    (to scale, the requirement's contour), the profile line the sheet's curve and table follow,
+    the softest section point and the part's dimensions below."""
+    u = _units(units)
+    f = result.field
+    part = f.part
+    k = u.length(1.0)
+    r_faces, z_faces = _faces(result)
+    hrc = f.grid(f.hrc).T
+    finite = hrc[np.isfinite(hrc)]
+    lo, hi = (float(finite.min()), float(finite.max())) if finite.size else (20.0, 68.0)
+    lo, hi = min(lo, hi - 5.0), max(hi, lo + 5.0)
+    mesh = ax.pcolormesh(k * z_faces, k * r_faces, np.ma.masked_invalid(hrc), cmap=HARDNESS_COLOURS, vmin=lo, vmax=hi,
+                         shading="flat")
+    below = f.grid(np.where(np.isfinite(f.hrc), np.nan, 1.0)).T
+    if np.isfinite(below).any():
+        ax.pcolormesh(k * z_faces, k * r_faces, np.ma.masked_invalid(below),
+                      cmap=LinearSegmentedColormap.from_list("g", [BELOW_SCALE] * 2), shading="flat")
+    req = result.case.requirement
+    if req is not None and req.min_hrc is not None and finite.size and lo < req.min_hrc < hi:
+        ax.contour(k * f.z_m * 1000.0, k * f.r_m * 1000.0, np.ma.masked_invalid(hrc), levels=[req.min_hrc],
+                   colors=REQUIREMENT_COLOUR, linewidths=1.2)
+    _outline(ax, result, lambda v: k * np.asarray(v))
+    ax.axvline(k * part.profile_z_m * 1000.0, color="#555555", lw=0.7, ls="--")
+    soft = result.softest().get("section")
+    if soft:
+        ax.plot(k * soft["z_mm"], k * soft["r_mm"], marker="X", ms=6, color="white", mec="black", mew=0.7)
+    ax.set_xlim(0.0, k * part.length_m * 1000.0)
+    ax.set_ylim(0.0, k * part.outer_m * 1000.0)
+    ax.set_aspect("equal", adjustable="box")
+    ax.tick_params(labelsize=6)
+    bar = ax.inset_axes([0.0, -0.42, 0.6, 0.06])
+    ax.figure.colorbar(mesh, cax=bar, orientation="horizontal")
+    bar.tick_params(labelsize=5.5)
+    dims = result.case.dimensions_mm
+    what = {"bar": f"bar \u2300 {u.fmt_length(dims.get('diameter_mm', 0), 1)}",
+            "ring": f"ring \u2300 {u.fmt_length(dims.get('outer_diameter_mm', 0), 1)} / "
+                    f"{u.fmt_length(dims.get('inner_diameter_mm', 0), 1)}",
+            "stepped_shaft": "stepped shaft \u2300 " + " / ".join(f"{u.length(d):g}" for d in dims.get("step_diameters_mm", []))
+                             + f" {u.length_unit}"}[part.kind]
+    import textwrap
+
+    ax.set_title(textwrap.fill(f"{what} x {u.fmt_length(part.length_m * 1000.0, 1)}: HRC in the half-section; "
+                               "dashed: the profile line of the curve and table; X: softest", 58),
+                 fontsize=6.5, color=INK, loc="left")

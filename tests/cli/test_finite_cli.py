@@ -79,3 +79,15 @@ def test_radial_cells_only_for_finite_parts(cli, tmp_path):
                     'medium = "oil_conventional_60c_moderate"\n[mesh]\nradial_cells = 30\n')
     code, _, stderr = cli("run", case)
     assert code == 2 and "mesh.radial_cells" in stderr and len(stderr.strip().splitlines()) == 1
+
+
+def test_sheet_of_a_finite_part_shows_its_map(cli, cases_dir, tmp_path, monkeypatch):
+    import quenchwise.part_maps as maps
+
+    drawn = []
+    original = maps.sheet_map
+    monkeypatch.setattr(maps, "sheet_map", lambda ax, result, units=None: (drawn.append(result), original(ax, result, units)))
+    code, _, stderr = cli("sheet", cases_dir / "stepped_shaft_oil.toml", "--out", tmp_path / "sheet", "--default-steps")
+    assert code == 0, stderr
+    assert (tmp_path / "sheet" / "sheet.pdf").is_file() and (tmp_path / "sheet" / "sheet.png").is_file()
+    assert len(drawn) == 1 and drawn[0].finite
