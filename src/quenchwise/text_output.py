@@ -111,6 +111,8 @@ def softest_lines(s: dict, u: Units) -> list[str]:
     """A finite part's profile line and its softest surface and section points (r, z, faces)."""
     line = s.get("profile_line", {})
     out = [f"        readings above along the {line.get('what', 'profile line')} (z = {u.fmt_length(line.get('z_mm', 0.0), 1)})"]
+    if s["quench"].get("lower_end"):
+        out.append(f"ends    lower end face (z = 0): {s['quench']['lower_end']}; upper: {s['quench']['upper_end']}")
     for key, label in (("surface", "softest surface"), ("section", "softest section")):
         p = s["softest"].get(key)
         if p is None:
