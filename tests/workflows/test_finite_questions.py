@@ -8,8 +8,8 @@ from quenchwise.thermal.quenchants import load_quenchant
 from quenchwise.workflows import simulate
 from quenchwise.workflows.band import band
 from quenchwise.workflows.compare import compare
-from quenchwise.workflows.finite import largest_length
 from quenchwise.workflows.requirement import meets
+from quenchwise.workflows.size import largest_length
 from quenchwise.workflows.variants import with_length, with_size
 
 # Coarse (r, z) meshes keep these fast; the physics checks do not need the default resolution.

@@ -174,18 +174,3 @@ def _rate_700(time_s, temperature_c) -> np.ndarray:
     h.time_s, h.temperature_c = time_s, temperature_c
     return rate(h)
 
-
-def largest_length(case, requirement, progress=None):
-    """The largest length of a finite part (its section kept; a stepped shaft's steps scaled
-    alike) that meets the requirement along its profile line, as size.largest_size brackets a
-    section: one batch over lengths from 0.5 to 20 diameters (the parts share one radial grid,
-    so they stack on one mesh), refined by a second. Ends cool the middle of a short part, so
-    the answer is a length below which the part meets it; passing at the longest length means
-    any length does (the infinite section meets it)."""
-    from .size import COARSE_POINTS, _margins, _refine
-    from .variants import with_length
-
-    diameter_mm = 2000.0 * case.finite.part.outer_m
-    grid = np.geomspace(0.5 * diameter_mm, 20.0 * diameter_mm, COARSE_POINTS)
-    return _refine(grid, _margins([with_length(case, x) for x in grid], requirement, progress),
-                   lambda x: with_length(case, x), requirement, False, True, progress)

@@ -23,7 +23,7 @@ from ..thermal.quenchants import Quenchant, builtin_names, htc_from_grossmann, l
 from .compare import compare
 from .requirement import requirement_margin
 from .simulate import simulate
-from .variants import case_size_mm, size_label, with_quenchant, with_size
+from .variants import case_size_mm, size_label, with_length, with_quenchant, with_size
 
 SEVERITY_RANGE_PER_INCH = (0.02, 20.0)
 COARSE_POINTS = 14
@@ -102,6 +102,16 @@ def largest_size(case: Case, requirement: Requirement, progress=None) -> Bracket
                    lambda s: with_size(case, s), requirement, False, True, progress)
 
 
+def largest_length(case: Case, requirement: Requirement, progress=None) -> Bracket:
+    """(c') A finite part: the largest length (its section kept; a stepped shaft's steps scaled
+    alike) that meets the requirement along its profile line, from 0.5 to 20 diameters. The ends
+    harden the middle of a short part, so lengths below the answer meet it; passing at the longest
+    length means any does. The parts share one radial grid, so each sweep is one stacked batch."""
+    grid = np.geomspace(1000.0 * case.finite.part.outer_m, 40000.0 * case.finite.part.outer_m, COARSE_POINTS)
+    return _refine(grid, _margins([with_length(case, x) for x in grid], requirement, progress),
+                   lambda x: with_length(case, x), requirement, False, True, progress)
+
+
 @dataclass
 class SizingAnswer:
     case: Case
@@ -150,10 +160,6 @@ def size(case: Case, requirement: Requirement | None = None, media: list[Quencha
     rows = sorted(comparison.rows, key=lambda r: (r["equivalent_h"] is None, r["equivalent_h"] or 0.0))
     stage[0] = 2
     biggest = largest_size(case, req, sub)
-    length = None
-    if getattr(case, "finite", None) is not None:   # a finite part: also its largest length at this section
-        from .finite import largest_length
-
-        length = largest_length(case, req, sub)
+    length = largest_length(case, req, sub) if getattr(case, "finite", None) is not None else None
     return SizingAnswer(case, req, severity, rows, biggest, size_label(case), case_size_mm(case), length)
 
