@@ -48,6 +48,7 @@ class PartField:
     heat_out_j: float = 0.0        # per radian, through all faces
     latent_j: float = 0.0
     steps: int = 0
+    depth_m: np.ndarray | None = None   # distance of each cell centre to the nearest cooled face centre
 
     @property
     def shape(self) -> tuple[int, int]:
@@ -97,6 +98,35 @@ class PartResult(Result):
                         "martensite_pct": rounded(100.0 * float(f.fractions["martensite"][c]), 1)}
         return out
 
+    def whole_part_requirement(self) -> dict | None:
+        """The case's requirement checked on every cell of the part within its depth of a cooled
+        face (every cell when it asks for the centre), not only along the profile line: met or
+        not, the share of those cells (by volume) that meet it and the worst cell with its place."""
+        req = getattr(self.case, "requirement", None)
+        f = self.field
+        if req is None or f.depth_m is None:
+            return None
+        from .hardness import hv_from_hrc
+
+        depth_mm = 1000.0 * f.depth_m
+        inside = f.solid & (True if req.depth_mm is None else depth_mm <= req.depth_mm)
+        if req.min_hrc is not None:
+            hv = f.hv if f.hv_tempered is None else f.hv_tempered
+            margin = hv - float(hv_from_hrc(req.min_hrc))
+        else:
+            margin = 100.0 * np.asarray(f.fractions["martensite"]) - req.min_martensite_pct
+        margin = np.where(inside & np.isfinite(margin), margin, np.inf)
+        if not inside.any():
+            return None
+        volume = np.outer(f.dz_m, f.r_m * f.dr_m).ravel()
+        c = int(np.argmin(margin))
+        ok = inside & (margin >= 0.0)
+        return {"requirement": req.describe(), "met": bool(margin[c] >= 0.0),
+                "share_met_pct": rounded(100.0 * float(volume[ok].sum() / volume[inside].sum()), 1),
+                "worst": {**self.location(c), "depth_mm": rounded(float(depth_mm[c]), 2),
+                          "hv": rounded(float(f.hv[c]), 0), "hrc": rounded(float(f.hrc[c]), 1),
+                          "martensite_pct": rounded(100.0 * float(f.fractions["martensite"][c]), 1)}}
+
     def summary(self) -> dict:
         s = super().summary()
         part = self.field.part
@@ -110,6 +140,9 @@ class PartResult(Result):
             s["quench"]["lower_end"] = ends["lower_end"].name
             s["quench"]["upper_end"] = ends["upper_end"].name
         s["softest"] = self.softest()
+        whole = self.whole_part_requirement()
+        if whole is not None:
+            s["requirement_whole_part"] = whole
         s["cells"] = int(self.field.solid.sum())
         return s
 

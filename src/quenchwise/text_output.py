@@ -121,6 +121,14 @@ def softest_lines(s: dict, u: Units) -> list[str]:
         faces = f", {p['faces'].replace('_', ' ')} face" if p.get("faces") else ""
         out.append(f"{label:<16}{hard} ({p['hv']:.0f} HV, martensite {p['martensite_pct']:.1f} %) at r "
                    f"{u.fmt_length(p['r_mm'])}, z {u.fmt_length(p['z_mm'])} from the lower end{faces}")
+    w = s.get("requirement_whole_part")
+    if w:
+        p = w["worst"]
+        hard = f"{p['hrc']:.1f} HRC" if p.get("hrc") is not None else f"{p['hv']:.0f} HV"
+        verdict = ("met on every cell within that depth of a cooled face" if w["met"] else
+                   f"NOT met on every cell: {w['share_met_pct']:.1f} % of the volume within that depth meets it")
+        out.append(f"whole part '{w['requirement']}': {verdict}; weakest {hard} at r {u.fmt_length(p['r_mm'])}, "
+                   f"z {u.fmt_length(p['z_mm'])}, {u.fmt_length(p['depth_mm'])} below the nearest cooled face")
     return out
 
 

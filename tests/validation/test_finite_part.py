@@ -295,3 +295,23 @@ def test_energy_balance_with_transformations():
     drop = -np.sum(np.where(geometry.solid, gained * mass, 0.0))
     assert run.latent_j[0] > 0.05 * run.heat_out_j[0]
     assert run.heat_out_j[0] == pytest.approx(drop + run.latent_j[0], rel=0.005)
+
+
+def test_cell_depth_and_the_whole_part_requirement():
+    # Plane geometry: the centre of a 50 x 60 mm bar lies min(R, L / 2) = 25 mm below its nearest
+    # cooled face, a cell next to the side half a cell. The whole-part check covers every cell
+    # within the depth, so it is never milder than the profile line's.
+    case = load_case({**OIL_4140, "part": {"shape": "bar", "diameter_mm": 50, "length_mm": 60},
+                      "requirement": {"min_hrc": 52, "depth_mm": 3}, "mesh": {"radial_cells": 12, "axial_cells": 24}})
+    [r] = simulate([case])
+    f = r.field
+    nz, nr = f.shape
+    depth = f.depth_m.reshape(nz, nr)
+    mid = int(np.argmin(np.abs(f.z_m - 0.03)))
+    assert depth[mid, 0] == pytest.approx(0.025 - f.r_m[0], abs=0.5 * f.dz_m[mid] + 1e-9)
+    assert depth[mid, -1] == pytest.approx(0.5 * f.dr_m[-1], rel=1e-9)
+    whole = r.whole_part_requirement()
+    from quenchwise.workflows.requirement import meets
+
+    assert not (whole["met"] and not meets(r, case.requirement))
+    assert whole["worst"]["depth_mm"] <= 3.0

@@ -76,6 +76,7 @@ class PartGeometry:
     dr_m: np.ndarray
     z_m: list = field(default_factory=list)    # per member (nz,) cell-centre heights from its lower end
     dz_m: list = field(default_factory=list)
+    surface_points: np.ndarray | None = None   # (n_rows, 2) r, z of each cooled face's centre (z from its member's lower end)
 
     @property
     def nr(self) -> int:
@@ -187,39 +188,40 @@ def build_geometry(members: list[PartMember], settings: PartSettings = PartSetti
         nz = block.shape[0]
         pad = np.zeros((nz + 2, nr + 2), dtype=bool)
         pad[1:-1, 1:-1] = s
-        length, bore = m.part.length_m, m.part.bore_m
-        z_top = np.concatenate([[0.0], np.cumsum(dz_members[b])])[1:]
+        bore = m.part.bore_m
+        zc = z_members[b]
         best_side, best_dist = -1, np.inf
         for j in range(nz):
             for i in range(nr):
                 if not s[j, i]:
                     continue
                 c = int(block[j, i])
+                half_z = 0.5 * dz_cell[c]
                 if not pad[j + 2, i + 1]:          # face above
                     tag = "upper_end" if j == nz - 1 else "shoulder"
-                    rows.append((b, c, r_c[i] * dr[i], 0.5 * dz_cell[c], tag))
+                    rows.append((b, c, r_c[i] * dr[i], half_z, tag, (r_c[i], zc[j] + half_z)))
                 if not pad[j, i + 1]:              # face below
                     tag = "lower_end" if j == 0 else "shoulder"
-                    rows.append((b, c, r_c[i] * dr[i], 0.5 * dz_cell[c], tag))
+                    rows.append((b, c, r_c[i] * dr[i], half_z, tag, (r_c[i], zc[j] - half_z)))
                 if not pad[j + 1, i + 2]:          # outer face
-                    rows.append((b, c, r_faces[i + 1] * dz_cell[c], 0.5 * dr[i], "side"))
-                    dist = abs(z_top[j] - 0.5 * dz_members[b][j] - m.part.profile_z_m)
+                    rows.append((b, c, r_faces[i + 1] * dz_cell[c], 0.5 * dr[i], "side", (r_faces[i + 1], zc[j])))
+                    dist = abs(zc[j] - m.part.profile_z_m)
                     if i == nr - 1 and dist < best_dist:
                         best_side, best_dist = len(rows) - 1, dist
                 if i == 0 and bore > 0.0:          # bore face (the mesh starts at the bore)
-                    rows.append((b, c, r_faces[0] * dz_cell[c], 0.5 * dr[i], "bore"))
+                    rows.append((b, c, r_faces[0] * dz_cell[c], 0.5 * dr[i], "bore", (r_faces[0], zc[j])))
                 elif i > 0 and not pad[j + 1, i]:  # inner face towards a non-solid cell
-                    rows.append((b, c, r_faces[i] * dz_cell[c], 0.5 * dr[i], "side"))
+                    rows.append((b, c, r_faces[i] * dz_cell[c], 0.5 * dr[i], "side", (r_faces[i], zc[j])))
         record[b] = best_side
-        del length
-    surface_rows = []
+    surface_rows, surface_points = [], []
     kept_index = {}
-    for k, (b, c, area, half, tag) in enumerate(rows):
+    for k, (b, c, area, half, tag, point) in enumerate(rows):
         q = members[b].media.get(tag)
         if q is None:
             continue          # insulated face
         kept_index[k] = len(surface_rows)
         surface_rows.append((b, c, float(area), float(half), q, tag))
+        surface_points.append(point)
     record = np.array([kept_index.get(int(k), -1) for k in record])
 
     def per_cell(attr, default):
@@ -233,6 +235,6 @@ def build_geometry(members: list[PartMember], settings: PartSettings = PartSetti
         overrides=ConstantOverrides(per_cell("conductivity_w_mk", np.nan), per_cell("specific_heat_j_kgk", np.nan)),
         face_cells=face_cells, face_ids=face_ids, face_half_m=face_half, face_weight=np.ones(face_ids.size),
         surface_rows=surface_rows, names=[m.name for m in members], solid=solid, record_surface_row=record,
-        r_m=r_c, dr_m=dr, z_m=z_members, dz_m=dz_members,
+        r_m=r_c, dr_m=dr, z_m=z_members, dz_m=dz_members, surface_points=np.array(surface_points, dtype=float),
     )
 

@@ -99,6 +99,20 @@ def simulate_finite(cases: list, progress: Callable[[float], None] | None = None
     return results
 
 
+def _depth(geometry, j: int) -> np.ndarray:
+    """Distance of each cell centre of member j to the nearest centre of its cooled faces [m]."""
+    rows = np.array([m == j for m, *_ in geometry.surface_rows])
+    points = geometry.surface_points[rows]
+    r = np.tile(geometry.r_m, geometry.z_m[j].size)
+    z = np.repeat(geometry.z_m[j], geometry.nr)
+    out = np.full(r.size, np.inf)
+    for k in range(0, points.shape[0], 256):         # in blocks: cells x faces stays small
+        p = points[k:k + 256]
+        d = np.hypot(r[:, None] - p[None, :, 0], z[:, None] - p[None, :, 1])
+        out = np.minimum(out, d.min(axis=1))
+    return out
+
+
 def _surface_cells(geometry, j: int) -> tuple[np.ndarray, dict]:
     start = geometry.member_starts[j]
     tags: dict = {}
@@ -132,7 +146,8 @@ def _part_result(case, state, geometry, j: int, run, stepper) -> PartResult:
                       dz_m=geometry.dz_m[j], solid=solid, surface_cells=surface_cells, surface_tags=tags,
                       time_s=run.time_s[j], temperature_c=temperature, fractions=fractions, hv=hv,
                       hrc=hrc_from_hv(hv), cooling_rate_700_c_s=rate, heat_out_j=float(run.heat_out_j[j]),
-                      latent_j=float(run.latent_j[j]), steps=int(run.steps[j]))
+                      latent_j=float(run.latent_j[j]), steps=int(run.steps[j]),
+                      depth_m=np.where(solid, _depth(geometry, j), np.nan))
     # The profile line: the radial row(s) at the profile height, linear in z between the two rows.
     z, nr = field.z_m, field.r_m.size
     zp = case.finite.part.profile_z_m
