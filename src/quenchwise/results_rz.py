@@ -150,13 +150,16 @@ class PartResult(Result):
 # -- writers ----------------------------------------------------------------------------------
 H5_UNITS_RZ = {**H5_UNITS, "r_mm": "mm", "z_mm": "mm", "surface": "1"}
 H5_LONG_NAMES_RZ = {**H5_LONG_NAMES, "r_mm": "radius of the cell centre", "z_mm": "height of the cell centre above the lower end",
-                    "surface": "1 where the cell has a cooled face", "node": "cell index (solid cells of the half-section)"}
+                    "surface": "1 where the cell has a cooled face", "node": "cell index (solid cells of the half-section)",
+                    "depth_mm": "distance from the cell centre to the nearest cooled face centre"}
 
 
 def _by_node(result: PartResult, cells: np.ndarray) -> dict:
     f = result.field
     out = {"r_mm": f.r_cell_mm[cells], "z_mm": f.z_cell_mm[cells],
            "surface": np.isin(cells, f.surface_cells).astype(np.int8)}
+    if f.depth_m is not None:
+        out["depth_mm"] = 1000.0 * f.depth_m[cells]
     out.update({name: np.asarray(f.fractions[name])[cells] for name in result.fraction_names})
     out.update(hv=f.hv[cells], hrc=f.hrc[cells])
     if f.hv_tempered is not None:

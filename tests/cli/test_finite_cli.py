@@ -33,6 +33,7 @@ def test_run_writes_the_finite_part_files(cli, cases_dir, tmp_path):
         n_t, n = f["temperature_c"].shape
         assert f["r_mm"].shape == (n,) and f["z_mm"].shape == (n,) and f["time_s"].shape == (n_t,)
         assert f["r_mm"].attrs["units"] == "mm" and f["z_mm"].attrs["units"] == "mm"
+        assert f["depth_mm"].attrs["units"] == "mm" and 0.0 < f["depth_mm"][()].min() < f["depth_mm"][()].max() < 32.5
         assert f["hrc"].attrs["units"] == "HRC" and f["temperature_c"].attrs["units"] == "degC"
         total = sum(f[k][()] for k in ("ferrite", "pearlite", "bainite", "martensite", "austenite"))
         np.testing.assert_allclose(total, 1.0, atol=1e-9)
