@@ -17,13 +17,14 @@ __all__ = ["load_case", "simulate", "compare", "size", "band", "jominy", "Result
 Progress = Callable[[float], None] | None
 
 
-def simulate(case: Case | list[Case], progress: Progress = None) -> Result | list[Result]:
-    """Quench one case (a Result) or a list of cases (a list of Results, solved as batches)."""
+def simulate(case: Case | list[Case], progress: Progress = None, model=None) -> Result | list[Result]:
+    """Quench one case (a Result) or a list of cases (a list of Results, solved as batches).
+    model: a kinetics model name or object to use instead of the cases' own (None: theirs)."""
     from .workflows.simulate import simulate as simulate_cases
 
     if isinstance(case, Case):
-        return simulate_cases([case], progress)[0]
-    return simulate_cases(list(case), progress)
+        return simulate_cases([case], progress, model)[0]
+    return simulate_cases(list(case), progress, model)
 
 
 def _quenchants(media, base: Path):

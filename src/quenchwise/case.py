@@ -117,7 +117,7 @@ class Case:
     outer: Quenchant
     inner: Quenchant | None
     end_c: float
-    model: str = DEFAULT_MODEL
+    model: str = DEFAULT_MODEL          # a name of MODELS; from Python also a kinetics model object
     martensite: str = "koistinen_marburger"
     temper: Temper | None = None
     conductivity_w_mk: float | None = None

@@ -18,26 +18,14 @@ from . import publish
 from .cautions import CAUTION
 from .cli_support import (_activity, _check_out_dir, _emit, _guard, _page, _publish, _quench, _refined,  # noqa: F401
                           _requirement_from_options, _run_case, _run_files, _sheet_note, _solve, _units_option,
-                          _write_csv, interrupted)
+                          _write_csv, _figures, _figures_option, _json_option, _overwrite_option, _units_choice,
+                          interrupted)
 from .errors import InputError
 from .version import __version__
 
 # rich_markup_mode=None: help texts are plain text, so "[requirement]" or "[C]" is printed, not eaten as markup.
 app = typer.Typer(add_completion=False, no_args_is_help=True, rich_markup_mode=None,
                   help="quenchwise: predict the hardness of a quenched steel part from surface to core.")
-
-
-def _json_option(what: str = "the summary"):
-    return typer.Option(False, "--json", help=f"Print {what} as one JSON object, nothing else.")
-
-
-def _overwrite_option(what: str = "results already in --out"):
-    return typer.Option(False, "--overwrite", help=f"Replace {what}.")
-
-
-def _units_choice(what: str = "the CSV"):
-    return typer.Option("si", "--units", help=f"Output units: si (mm, C) or us (in, F) for the text, {what} and "
-                                              "the figures; --json stays SI.")
 
 
 @app.command()
@@ -59,9 +47,10 @@ def run(
                                                     "CSV columns and the figures; result.h5 stays SI."),
     fine: bool = typer.Option(False, "--fine", help="Finer time steps in the kinetics (smoother profile, "
                                                     "about 2-3 times the time)."),
+    figures: str = _figures_option(),
 ) -> None:
     """Simulate the quench of one part and print its hardness profile; with --out also write it."""
-    with _guard():
+    with _guard(), _figures(figures):
         from .plots import cooling_figure, hardness_figure
         from .results import profile_csv_text, write_result_h5
         from .text_output import run_summary_text
@@ -119,9 +108,10 @@ def compare(
     json_out: bool = _json_option("the table"),
     overwrite: bool = _overwrite_option(),
     units: str = _units_choice("compare.csv"),
+    figures: str = _figures_option(),
 ) -> None:
     """The same part in several quenchants, solved as one batch."""
-    with _guard():
+    with _guard(), _figures(figures):
         from .case import load_case
         from .plots import compare_figures
         from .text_output import compare_text
@@ -158,9 +148,10 @@ def size(
     json_out: bool = _json_option("the answers"),
     overwrite: bool = _overwrite_option(),
     units: str = _units_choice(),
+    figures: str = _figures_option(),
 ) -> None:
     """Mildest severity, the quenchants that do it, and the largest section that meets a requirement."""
-    with _guard():
+    with _guard(), _figures(figures):
         from .case import load_case
         from .plots import sizing_figure
         from .text_output import SEVERITY_NOTE, size_text
@@ -191,9 +182,10 @@ def band(
     json_out: bool = _json_option("the band summary"),
     overwrite: bool = _overwrite_option(),
     units: str = _units_choice(),
+    figures: str = _figures_option(),
 ) -> None:
     """Hardness band over the grade's chemistry range (seeded Monte Carlo, one batch)."""
-    with _guard():
+    with _guard(), _figures(figures):
         import math
 
         from .case import load_case
@@ -258,9 +250,10 @@ def jominy(
                                     help="Also find the DI by simulating bars (a few seconds more)."),
     json_out: bool = _json_option(),
     overwrite: bool = _overwrite_option(),
+    figures: str = _figures_option(),
 ) -> None:
     """Simulate the end-quench (Jominy) test of the case's steel, with its ideal critical diameter."""
-    with _guard():
+    with _guard(), _figures(figures):
         from .steel_figures import jominy_figure
         from .text_output import jominy_text
         from .workflows.jominy import DEFAULT_SETTINGS, RZ_SETTINGS, load_steel_case, read_band
@@ -283,13 +276,14 @@ def diagram(
     case_file: Path = typer.Argument(..., help="Case file (TOML): its [steel] and [transform] tables, and for "
                                                "CCT the bath temperature of its quench."),
     kind: str = typer.Option(..., "--kind", "-k", help="ttt (isothermal holds) or cct (continuous cooling)."),
-    out: Path = typer.Option(..., "--out", "-o", help="Folder for the figure (PNG, SVG), the curve data (CSV) "
+    out: Path = typer.Option(..., "--out", "-o", help="Folder for the figure (PNG; --figures for SVG, PDF), the curve data (CSV) "
                                                       "and the summary (JSON)."),
     json_out: bool = _json_option(),
     overwrite: bool = _overwrite_option("a diagram already in --out"),
+    figures: str = _figures_option(),
 ) -> None:
     """TTT or CCT diagram of the case's steel with the case's kinetics model."""
-    with _guard():
+    with _guard(), _figures(figures):
         from .case import load_case
         from .steel_figures import cct_figure, ttt_figure
         from .results import write_table_csv
@@ -320,10 +314,11 @@ def quenchants(
                                        "figure (h(T), probe cooling curve and cooling-rate curve)."),
     json_out: bool = typer.Option(False, "--json", help="Print the list (or the one curve) as one JSON object."),
     overwrite: bool = _overwrite_option("a table already in --out"),
+    figures: str = _figures_option(),
 ) -> None:
     """List the built-in quenchants with bath, agitation, flash point, ISO 9950 probe figures and
     equivalent Grossmann H; or show one curve (NAME), and with --out write its table and figure."""
-    with _guard():
+    with _guard(), _figures(figures):
         from .text_output import quenchant_list_text, quenchant_text
         from .thermal.quenchants import builtin_quenchants, load_quenchant, quenchant_csv_text
         from .thermal.severity import DEFINITION
@@ -368,10 +363,11 @@ def probe(
                                            "probe's end faces (1-D reading only)."),
     json_out: bool = _json_option(),
     overwrite: bool = _overwrite_option("a fit already in --out"),
+    figures: str = _figures_option(),
 ) -> None:
     """Fit h(T_surface) of a bath from a cooling-curve probe record (inverse conduction) and write it
     as a quenchant CSV that `run` accepts in [quench] medium."""
-    with _guard():
+    with _guard(), _figures(figures):
         from .quenchant_figures import write_probe_fit
         from .text_output import probe_fit_text
         from .workflows.probe import fit_probe_record
@@ -393,10 +389,11 @@ def fit_tank(
     out: Path = typer.Option(..., "--out", "-o", help="Folder for quenchant.csv, tank_fit.csv and the figure."),
     json_out: bool = _json_option(),
     overwrite: bool = _overwrite_option("a fit already in --out"),
+    figures: str = _figures_option(),
 ) -> None:
     """Fit the tank's effective severity (a factor on the case's h(T)) to a measured hardness
     traverse and write it as a quenchant CSV that `run` accepts in [quench] medium."""
-    with _guard():
+    with _guard(), _figures(figures):
         from .case import load_case
         from .measured import read_traverse
         from .tank_figures import write_tank_fit

@@ -162,6 +162,38 @@ def _emit(json_out: bool, payload: dict, text: str, files: list[Path] | None = N
         typer.echo(text + "\n\n" + CAUTION)
 
 
+# -- options shared by the commands ---------------------------------------------------------------
+def _json_option(what: str = "the summary"):
+    return typer.Option(False, "--json", help=f"Print {what} as one JSON object, nothing else.")
+
+
+def _overwrite_option(what: str = "results already in --out"):
+    return typer.Option(False, "--overwrite", help=f"Replace {what}.")
+
+
+def _units_choice(what: str = "the CSV"):
+    return typer.Option("si", "--units", help=f"Output units: si (mm, C) or us (in, F) for the text, {what} and "
+                                              "the figures; --json stays SI.")
+
+
+def _figures_option():
+    return typer.Option("png", "--figures", help="Figure files to write: png (the default), svg, pdf, several "
+                                                 "comma-separated (png,svg,pdf), or none.")
+
+
+@contextmanager
+def _figures(value: str):
+    """The --figures option: every figure the command writes goes out in these formats (plots.
+    figure_formats); a bad value is one line, exit 2 (under _guard)."""
+    from .figure_files import FIGURE_FORMATS, figure_formats
+
+    names = list(dict.fromkeys(v.strip().lower() for v in value.split(",") if v.strip()))
+    if names != ["none"] and (not names or any(n not in FIGURE_FORMATS for n in names)):
+        raise InputError("--figures", value, "png, svg or pdf, several comma-separated (e.g. png,svg), or none")
+    with figure_formats(() if names == ["none"] else names):
+        yield
+
+
 def _page(page: str) -> str:
     """The --page option: a4 or letter."""
     page = page.strip().lower()

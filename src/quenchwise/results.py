@@ -10,7 +10,7 @@ import csv
 import io
 import os
 import tempfile
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from datetime import datetime, timezone
 from pathlib import Path
 
@@ -21,18 +21,31 @@ from .formatting import csv_cell, rounded
 from .version import __version__
 from .hardness.jominy_equivalent import equivalent_jominy_distance_mm
 from .hardness.phases import HARDNESS_METHOD
-from .kinetics import critical_temperature_note
+from .kinetics import critical_temperature_note, model_name
 from .steel import AusteniteState
 from .thermal.solver import CaseHistory
 
 FRACTIONS = ("ferrite", "pearlite", "bainite", "martensite", "austenite")
 
 
+def surface_first(history: CaseHistory) -> CaseHistory:
+    """The solver's history (nodes from the centre line / inner end outward) seen from the outer
+    quenched surface inward, as a Result keeps it: every node axis reversed (views, no copies)."""
+    return replace(history, radius_m=history.radius_m[::-1], cell_width_m=history.cell_width_m[::-1],
+                   volume_weight=history.volume_weight[::-1], temperature_c=history.temperature_c[:, ::-1])
+
+
 @dataclass
 class Result:
+    """One simulated case. Every per-node array runs from the outer quenched surface inward, as
+    profile.csv does: ``hv``, ``hrc``, ``fractions[...]``, ``cooling_rate_700_c_s``, the tempered
+    hardness, ``depth_mm`` (0 first), ``position_mm`` and ``history`` (the solver's CaseHistory seen
+    surface first: ``history.radius_m`` and the columns of ``history.temperature_c``; see
+    surface_first). The solver's own CaseHistory runs the other way; result.h5 keeps that order."""
+
     case: object                      # quenchwise.case.Case (not imported: results sits below case)
     state: AusteniteState
-    history: CaseHistory
+    history: CaseHistory              # surface first (surface_first)
     fractions: dict
     hv: np.ndarray
     hrc: np.ndarray
@@ -89,9 +102,17 @@ class Result:
     def case_faces(self) -> str:
         return getattr(self.case, "dimensions_mm", {}).get("faces", "both")
 
+    def node_at(self, radius_m: float) -> int:
+        """Index of the node nearest a radius [m]; of two equally near, the deeper one."""
+        gap = np.abs(self.history.radius_m - radius_m)
+        near = np.flatnonzero(gap == gap.min())
+        return int(near[np.argmax(self.depth_mm[near])])
+
     def at(self, values: np.ndarray, radius_m: float) -> float:
+        """A node quantity interpolated at a radius [m] (linear between the nodes)."""
         r = self.history.radius_m
-        return float(np.interp(radius_m, r, values))
+        order = np.argsort(r)
+        return float(np.interp(radius_m, r[order], np.asarray(values)[order]))
 
     def summary(self) -> dict:
         """What the engineer reads first: hardness and martensite at surface, half radius, centre."""
@@ -133,7 +154,7 @@ class Result:
                        "inner": case.inner.name if case.inner else None, "end_c": case.end_c,
                        "equivalent_h_per_inch": self.extra.get("equivalent_h", {}).get("outer"),
                        "equivalent_h_inner_per_inch": self.extra.get("equivalent_h", {}).get("inner")},
-            "models": {"kinetics": case.model, "martensite": case.martensite,
+            "models": {"kinetics": model_name(case.model), "martensite": case.martensite,
                        "hardness": f"{HARDNESS_METHOD}; ASTM E140 conversion"},
             "time_to_end_s": round(float(self.history.time_s[-1]), 3),
             "steps": self.history.steps,
@@ -144,7 +165,7 @@ class Result:
 
     def warnings(self) -> list[str]:
         case = self.case
-        out = list(case.composition.range_warnings(case.model))
+        out = list(case.composition.range_warnings(model_name(case.model)))
         out.extend(self.state.warnings())
         for q in (case.outer, case.inner):
             if q is not None and q.flash_point_c is not None and q.bath_c > q.flash_point_c - FLASH_MARGIN_K:
@@ -173,8 +194,7 @@ def _nan_aware(result: Result, values: np.ndarray, r: float) -> float:
     if not ok.any():
         return float("nan")
     v = result.at(np.where(ok, values, 0.0), r)
-    near = np.argmin(np.abs(result.history.radius_m - r))
-    return v if ok[near] else float("nan")
+    return v if ok[result.node_at(r)] else float("nan")
 
 
 # -- writers --------------------------------------------------------------------------------
@@ -192,7 +212,7 @@ def _atomic_write(path: Path, write) -> None:
 
 def profile_columns(result: Result) -> dict[str, np.ndarray]:
     """The columns of profile.csv as arrays, one value per node from the quenched surface inward
-    (by depth; the Result's own arrays run from the centre line / inner end outward)."""
+    (by depth, as the Result's own arrays run)."""
     order = np.argsort(result.depth_mm, kind="stable")
     columns = {"depth_mm": result.depth_mm, "position_mm": result.position_mm,
                **{n: result.fractions[n] for n in result.fraction_names},
@@ -238,7 +258,11 @@ def write_result_h5(result: Result, path: Path) -> None:
 
     Self-describing: every dataset has a `units` attribute (H5_UNITS) and a `long_name`, and two
     HDF5 dimension scales, `time` [s] and `node` (the node index, as stored), are attached to the
-    axes of the arrays, so netCDF readers (xarray with the h5netcdf engine) see named dimensions."""
+    axes of the arrays, so netCDF readers (xarray with the h5netcdf engine) see named dimensions.
+    Nodes are stored from the centre line / inner end outward (position_mm rising; DESIGN.md's
+    contract), the reverse of the Result's surface-first arrays."""
+    order = np.argsort(result.position_mm, kind="stable")
+
     def write(p: Path) -> None:
         with h5py.File(p, "w") as f:
             n_t, n_x = result.history.temperature_c.shape
@@ -254,11 +278,12 @@ def write_result_h5(result: Result, path: Path) -> None:
                 by_node.update(hv_tempered=result.hv_tempered, hrc_tempered=result.hrc_tempered)
             by_node.update(cooling_rate_700_c_s=result.cooling_rate_700_c_s,
                            jominy_distance_mm=result.jominy_distance_mm)
-            temperature = f.create_dataset("temperature_c", data=result.history.temperature_c, compression="gzip")
+            temperature = f.create_dataset("temperature_c", data=result.history.temperature_c[:, order],
+                                           compression="gzip")
             temperature.dims[0].attach_scale(time)
             temperature.dims[1].attach_scale(node)
             for name, values in by_node.items():
-                f.create_dataset(name, data=values).dims[0].attach_scale(node)
+                f.create_dataset(name, data=np.asarray(values)[order]).dims[0].attach_scale(node)
             for name, ds in f.items():
                 ds.attrs["units"] = H5_UNITS[name]
                 ds.attrs["long_name"] = H5_LONG_NAMES.get(name, name.replace("_", " "))

@@ -36,8 +36,9 @@ def test_jominy_writes_table_figure_and_json(jominy_run):
     tmp, r = jominy_run
     assert r.exit_code == 0, r.stderr
     out = tmp / "out"
-    for name in ("jominy.csv", "jominy.png", "jominy.svg"):
+    for name in ("jominy.csv", "jominy.png"):
         assert (out / name).is_file()
+    assert not (out / "jominy.svg").exists()             # PNG only unless --figures asks for more
     rows = list(csv.DictReader((out / "jominy.csv").open()))
     assert list(rows[0])[:5] == ["distance_mm", "distance_sixteenths", "hrc", "hv", "cooling_rate_700_c_s"]
     assert len(rows) == 32 and float(rows[0]["distance_mm"]) == pytest.approx(1.5875, abs=1e-3)

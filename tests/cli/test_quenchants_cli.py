@@ -74,11 +74,16 @@ def test_one_curve_prints_its_table_and_writes_table_and_plot(cli, tmp_path):
     assert "equivalent H" in stdout and "surface_c  htc_w_m2k" in stdout and "not measured data" in stdout
     assert "probe   max" in stdout and "K/s" in stdout
     out = tmp_path / "poly"
-    code, stdout, stderr = cli("quenchants", "polymer_20pct_40c_moderate", "--out", out)
+    code, stdout, stderr = cli("quenchants", "polymer_20pct_40c_moderate", "--out", out, "--figures", "png,svg")
     assert code == 0, stderr
     for f in ("polymer_20pct_40c_moderate.csv", "polymer_20pct_40c_moderate_htc.png",
               "polymer_20pct_40c_moderate_htc.svg"):
         assert (out / f).is_file(), f
+    # --figures none: the table only
+    code, _, stderr = cli("quenchants", "polymer_20pct_40c_moderate", "--out", tmp_path / "bare", "--figures", "none")
+    assert code == 0, stderr
+    assert sorted(p.name for p in (tmp_path / "bare").iterdir() if not p.name.startswith(".")) == [
+        "polymer_20pct_40c_moderate.csv"]
     # The written table is a user curve that loads to the same h(T).
     again = load_quenchant(str(out / "polymer_20pct_40c_moderate.csv"))
     ref = load_quenchant("polymer_20pct_40c_moderate")
@@ -144,8 +149,9 @@ def test_probe_fit_writes_a_curve_that_run_accepts(cli, tmp_path):
     code, stdout, stderr = cli("probe", record, "--out", out, "--json")
     assert code == 0, stderr
     summary = json.loads(stdout)
-    for f in ("quenchant.csv", "probe_fit.csv", "probe_fit.png", "probe_fit.svg"):
+    for f in ("quenchant.csv", "probe_fit.csv", "probe_fit.png"):
         assert (out / f).is_file(), f
+    assert not (out / "probe_fit.svg").exists()          # PNG only unless --figures asks for more
     assert summary["bath_c"] == 60 and summary["refit_rms_k"] < 3.0 and summary["future_steps"] >= 1
     fitted = load_quenchant(str(out / "quenchant.csv"))
     assert fitted.name == "tank2_probe_fit" and fitted.bath_c == 60.0 and "Beck" in fitted.source

@@ -16,8 +16,9 @@ def test_run_writes_the_contract_files(cli, cases_dir, tmp_path):
     out = tmp_path / "shaft"
     code, stdout, stderr = cli("run", cases_dir / "shaft_water.toml", "--out", out)
     assert code == 0, stderr
-    for name in ("result.h5", "profile.csv", "hardness.png", "hardness.svg", "cooling.png", "cooling.svg"):
+    for name in ("result.h5", "profile.csv", "hardness.png", "cooling.png"):
         assert (out / name).is_file(), name
+    assert not list(out.glob("*.svg")) and not list(out.glob("*.pdf"))   # PNG only unless --figures asks
     assert "surface" in stdout and "half radius" in stdout and "centre" in stdout and "Caution" in stdout
     rows = list(csv.DictReader((out / "profile.csv").open()))
     assert list(rows[0].keys()) == CONTRACT_COLUMNS
@@ -41,6 +42,14 @@ def test_json_prints_one_object_only(cli, cases_dir, tmp_path):
     summary = json.loads(stdout)
     assert [p["location"] for p in summary["points"]] == ["surface", "half radius", "centre"]
     assert summary["caution"]
+
+
+def test_a_bad_figures_value_gets_one_line_and_status_2(cli, cases_dir, tmp_path):
+    out = tmp_path / "never"
+    code, stdout, stderr = cli("run", cases_dir / "shaft_water.toml", "--out", out, "--figures", "png,gif")
+    assert code == 2 and stdout == "" and len(stderr.strip().splitlines()) == 1
+    assert "--figures" in stderr and "png,gif" in stderr and "svg" in stderr
+    assert not out.exists()
 
 
 def test_malformed_case_gets_one_line_and_status_2(tmp_path):

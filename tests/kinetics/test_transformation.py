@@ -162,3 +162,21 @@ def test_follow_history_refuses_badly_shaped_or_backward_time():
         follow_history(nodes, Li1998(), np.array([0.0, 1.0]), np.array([800.0, 700.0]))
     with pytest.raises(ValueError):
         follow_history(nodes, Li1998(), np.array([0.0, -1.0]), np.array([[800.0], [700.0]]))
+
+
+def test_progress_integral_table_against_adaptive_quadrature():
+    # The table is built by Gauss-Legendre pieces and the end asymptotes (kinetics/sigmoid.py);
+    # scipy.integrate.quad (QUADPACK, adaptive) on the same pieces is the outside reference.
+    import warnings
+
+    from scipy import integrate
+
+    from quenchwise.kinetics import sigmoid
+
+    for p, beta in [(0.4, 0.0), (2.0 / 3.0, 0.0), (2.0 / 3.0, 3.0)]:
+        x, table = sigmoid._table(p, beta)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", integrate.IntegrationWarning)
+            pieces = [integrate.quad(sigmoid._integrand, a, b, args=(p, beta))[0] for a, b in zip(x[:-1], x[1:])]
+        reference = np.concatenate([[0.0], np.cumsum(pieces)])
+        assert np.max(np.abs(table - reference) / np.maximum(reference, 1e-12)) < 1e-6

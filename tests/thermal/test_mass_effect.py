@@ -7,70 +7,88 @@ bias by position with stated tolerances, and the surface-to-centre gradient of o
 than at the centre).
 """
 
-import importlib.util
+import sys
 from pathlib import Path
 
 import numpy as np
 import pytest
 
 ROOT = Path(__file__).resolve().parents[2]
-spec = importlib.util.spec_from_file_location("mass_effect", ROOT / "benchmarks" / "mass_effect.py")
-mass_effect = importlib.util.module_from_spec(spec)
-spec.loader.exec_module(mass_effect)
+sys.path.insert(0, str(ROOT / "benchmarks"))
+import accuracy  # noqa: E402  (the one bar scorer; benchmarks/mass_effect.py is its command line)
+
+POSITIONS = tuple(accuracy.BAR_POSITIONS)
+
+
+def _bars(rows):
+    """{(grade, quenchant, diameter in): {position: row}}"""
+    out = {}
+    for r in rows:
+        out.setdefault((r["grade"], r["quenchant"], float(r["diameter_in"])), {})[r["position"]] = r
+    return out
 
 
 def test_the_bar_file_follows_the_contract():
-    text = mass_effect.DATA.read_text("utf-8")
+    text = accuracy.BARS_CSV.read_text("utf-8")
     header = [line for line in text.splitlines() if line and not line.startswith("#")][0]
-    assert header == "grade,c,mn,si,ni,cr,mo,austenitize_c,quenchant,diameter_in,position,hrc,source"
-    presets, bars = mass_effect.read_bars()
-    from quenchwise.thermal.quenchants import builtin_names
-
-    assert set(presets) == {"water", "oil"} and set(presets.values()) <= set(builtin_names())
-    grades = {k[0] for k in bars}
-    assert len(grades) >= 5 and {k[1] for k in bars} == {"water", "oil"}
+    assert header == "grade,c,mn,si,ni,cr,mo,v,austenitize_c,quenchant,diameter_in,position,hrc,source"
+    presets = accuracy.bar_presets()
+    assert set(presets) == {"water", "oil"}
+    # Each names a quenchant the program knows (built-in preset or the quenchant model's keys), of its kind.
+    assert accuracy._quenchant(presets["water"]).kind == "water"
+    assert accuracy._quenchant(presets["oil"]).kind == "oil"
+    bars = _bars(accuracy._rows(accuracy.BARS_CSV))
+    assert len({k[0] for k in bars}) >= 5 and {k[1] for k in bars} == {"water", "oil"}
     assert {k[2] for k in bars} == {0.5, 1.0, 2.0, 4.0}
     for key, readings in bars.items():
-        assert set(readings) == set(mass_effect.POSITIONS), key
-    import csv
-
-    for row in csv.DictReader(line for line in text.splitlines() if line and not line.startswith("#")):
-        assert row["source"] and "(memory" in row["source"]
+        assert set(readings) == set(POSITIONS), key
+        assert all(r["source"] and "(memory" in r["source"] for r in readings.values()), key
 
 
 @pytest.fixture(scope="module")
-def table():
-    presets, bars = mass_effect.read_bars()
-    return bars, mass_effect.predict(bars, presets)
+def rows():
+    from quenchwise.case import DEFAULT_MODEL
+
+    return accuracy.run_bars(DEFAULT_MODEL)
+
+
+@pytest.fixture(scope="module")
+def table(rows):
+    return _bars(rows)
+
+
+def test_the_command_line_prints_the_scorecard_numbers(rows, tmp_path, capsys):
+    # benchmarks/mass_effect.py is a thin command line over the scorecard's scorer: its summary line
+    # and bias table are those of section (b) (issue 12: one bar scorer, the same numbers).
+    import importlib.util
+
+    spec = importlib.util.spec_from_file_location("mass_effect", ROOT / "benchmarks" / "mass_effect.py")
+    mass_effect = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(mass_effect)
+    assert mass_effect.main(["--markdown", str(tmp_path / "bars.md")]) == 0
+    printed = (tmp_path / "bars.md").read_text("utf-8")
+    for line in accuracy.bars_markdown(rows):
+        assert line in printed, line
 
 
 def test_bias_by_position_within_stated_tolerances(table):
     # Handbook values recalled to +/-5 HRC and composition taken as the grade's nominal (not the
-    # tested heat): mean bias within 4.5 HRC and RMS within 7.5 HRC at each position, over the bars
-    # the model puts on the HRC scale (>= 20). Today (default kinetics li1998-multigrade, presets in
-    # the file): +3.5 / +1.6 / +3.3 mean and 6.5 / 4.6 / 5.8 RMS, surface / half radius / centre
-    # (README table); the published li1998 gives +4.3 / +4.1 / +5.7 and 7.9 / 7.1 / 8.5.
-    bars, predicted = table
-    for p in mass_effect.POSITIONS:
-        d = np.array([predicted[k][p] - bars[k][p] for k in bars])
-        d = d[np.isfinite(d)]
-        assert d.size >= 0.75 * len(bars), p
+    # tested heat): mean bias within 4.5 HRC and RMS within 7.5 HRC at each position (simulated HRC
+    # below the scale read as 19.9). The scorecard's own targets (benchmarks/accuracy.md section (b))
+    # are tighter; tests/validation/test_accuracy.py guards the level reached.
+    for p in POSITIONS:
+        d = np.array([v[p]["sim_hrc"] - float(v[p]["hrc"]) for v in table.values()])
         assert abs(d.mean()) <= 4.5 and np.sqrt(np.mean(d * d)) <= 7.5, (p, d.mean())
 
 
 def test_hardness_falls_from_surface_to_centre_and_with_size(table):
     # Common practice, no source: in every bar the surface is not softer than the centre (0.5 HRC
     # numerical slack), and a bigger bar of the same steel is not harder at the centre.
-    bars, predicted = table
-    for k, v in predicted.items():
-        if np.isfinite(v["centre"]):
-            assert v["surface"] >= v["centre"] - 0.5, k
-    for k in bars:
-        bigger = [b for b in bars if b[0] == k[0] and b[1] == k[1] and b[2] > k[2]]
-        for b in bigger:
-            c_small, c_big = predicted[k]["centre"], predicted[b]["centre"]
-            if np.isfinite(c_big):
-                assert c_big <= c_small + 0.5, (k, b)
+    for k, v in table.items():
+        assert v["surface"]["sim_hrc"] >= v["centre"]["sim_hrc"] - 0.5, k
+    for k in table:
+        for b in [b for b in table if b[:2] == k[:2] and b[2] > k[2]]:
+            assert table[b]["centre"]["sim_hrc"] <= table[k]["centre"]["sim_hrc"] + 0.5, (k, b)
 
 
 def _bar(diameter_mm, medium, model):

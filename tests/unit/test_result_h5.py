@@ -45,6 +45,39 @@ def test_xarray_reads_named_dimensions(written):
         assert ds["temperature_c"].dims == ("time", "node")
         assert ds["hv"].dims == ("node",) and ds["hv"].attrs["units"] == "HV"
         assert ds.sizes["node"] == result.hv.size and ds.sizes["time"] == result.history.time_s.size
-        np.testing.assert_allclose(ds["depth_mm"].values, result.depth_mm)
+        np.testing.assert_allclose(ds["depth_mm"].values, result.depth_mm[::-1])   # file: centre outward
     finally:
         ds.close()
+
+
+def test_result_arrays_run_from_the_surface_inward(written):
+    # issue 16: a Result reads like profile.csv, the first node is the one at the quenched surface
+    # (a cell centre: half the outer cell below it), the last the centre.
+    result, _ = written
+    assert result.depth_mm[0] == pytest.approx(500.0 * result.history.cell_width_m[0], abs=1e-12)
+    assert np.all(np.diff(result.depth_mm) > 0) and result.position_mm[-1] == pytest.approx(20.0 - result.depth_mm[-1])
+    surface, _, centre = result.summary()["points"]
+    assert result.hrc[0] == pytest.approx(surface["hrc"], abs=0.05)
+    assert result.hrc[-1] == pytest.approx(centre["hrc"], abs=0.05)
+    assert 100 * result.fractions["martensite"][0] == pytest.approx(surface["martensite_pct"], abs=0.05)
+    # the temperatures too: at the end of the quench the centre (last column) is the hottest node
+    last = result.history.temperature_c[-1]
+    assert np.argmax(last) == last.size - 1 and np.argmin(last) == 0
+
+
+def test_files_keep_their_order(written, tmp_path):
+    # result.h5 keeps DESIGN.md's order (position_mm from the centre line outward, temperature_c
+    # columns alike); profile.csv runs from the quenched surface inward, as before.
+    from quenchwise.results import profile_csv_text
+
+    result, path = written
+    with h5py.File(path) as f:
+        assert np.all(np.diff(f["position_mm"][()]) > 0)
+        np.testing.assert_array_equal(f["position_mm"][()], result.position_mm[::-1])
+        np.testing.assert_array_equal(f["hv"][()], result.hv[::-1])
+        np.testing.assert_array_equal(f["martensite"][()], result.fractions["martensite"][::-1])
+        np.testing.assert_array_equal(f["temperature_c"][()], result.history.temperature_c[:, ::-1])
+        assert np.argmax(f["temperature_c"][-1]) == 0          # the centre is the file's first node
+    rows = [line.split(",") for line in profile_csv_text(result).splitlines()[1:]]
+    assert float(rows[0][0]) == pytest.approx(result.depth_mm[0], abs=1e-4)
+    assert [float(r[0]) for r in rows] == sorted(float(r[0]) for r in rows)

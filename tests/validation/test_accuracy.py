@@ -49,3 +49,29 @@ def test_boron_grade_is_scored_and_hardens_like_its_band(subset):
     # 15B35H: without boron a 0.35C-0.95Mn steel reaches 50 % martensite near J3 (A255 DI about
     # 0.9 in); the band puts it near J7 (SAE J1268, memory).
     assert subset["15B35H"].j50_sim > 5.0
+
+
+# -- handbook bars (scorecard section (b), the one bar scorer; about 6 s) ---------------------------
+# Reference: handbook as-quenched round bars (benchmarks/data/mass_effect_bars.csv: 84 readings of
+# 7 grades, 1/2-4 in, recalled, memory +/-5 HRC), quenched in mildly agitated water and oil and read
+# where the handbook read them (surface 1.6 mm deep). Measured when written (default model): 47.6 %
+# of the readings within 3 HRC (40 of 84), bias -0.1 / +1.2 / +2.9 HRC at surface / half radius /
+# centre. The targets (70 %, every position within +/-2.5) are not met: the centre bias
+# comes from the kinetics, which put more martensite at a bar centre than at the end-quench position
+# of the same cooling rate at 700 C (scorecard section (d)). The guards hold the level reached, with
+# one reading and a few tenths of HRC of slack for numerics.
+@pytest.fixture(scope="module")
+def bars():
+    from quenchwise.case import DEFAULT_MODEL
+    return accuracy.bar_summary(accuracy.run_bars(DEFAULT_MODEL))
+
+
+def test_handbook_bars_hold_the_level_reached(bars):
+    assert bars["readings"] == 84
+    assert bars["within_3_pct"] >= 100.0 * 39 / 84, bars["within_3_pct"]
+    assert bars["rms"] <= 5.4, bars["rms"]
+
+
+@pytest.mark.parametrize("position, limit", [("surface", 0.6), ("half_radius", 1.6), ("centre", 3.3)])
+def test_handbook_bar_bias_by_position(bars, position, limit):
+    assert abs(bars["groups"][("position", position)]["bias"]) <= limit, bars["groups"][("position", position)]

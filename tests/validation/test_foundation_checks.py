@@ -11,9 +11,16 @@ from quenchwise.workflows import simulate
 from analytic_conduction import temperature as series_temperature
 
 
-def test_koistinen_marburger_at_ms_minus_100():
-    # Koistinen & Marburger (1959), Acta Metall. 7, 59: 1 - exp(-0.011 x 100) = 0.667 (memory).
-    assert float(koistinen_marburger(300.0, 200.0)) == pytest.approx(0.667, abs=0.001)
+@pytest.mark.parametrize("carbon", [1.0, 1.1])
+def test_retained_austenite_of_a_plain_high_carbon_steel_quenched_to_room_temperature(carbon):
+    # Measured, not the law's own formula: a plain 1.0-1.1 %C steel, all carbon in solution,
+    # quenched to room temperature keeps about 10-15 % austenite (X-ray measurements: Roberts
+    # (1953), Trans. AIME 197, 203, and the plain carbon steels Koistinen & Marburger (1959),
+    # Acta Metall. 7, 59 fitted their alpha = 0.011 1/K to; memory). Tolerance: 7-20 %. The
+    # program's chain is checked: its Ms (martensite_start) and the Koistinen-Marburger law to 20 C.
+    ms = float(martensite_start(carbon))
+    retained = 1.0 - float(koistinen_marburger(ms, 20.0))
+    assert 0.07 <= retained <= 0.20, (ms, retained)
 
 
 def test_ms_of_a_cr_mo_steel():
@@ -57,7 +64,8 @@ def test_conduction_only_run_matches_carslaw_jaeger_cylinder(tmp_path):
     result = simulate([_case(tmp_path, CONDUCTION)])[0]
     h = result.history
     exact = series_temperature("bar", 0.02, 30.0, 7800.0, 600.0, 1500.0, 850.0, 20.0, h.time_s[1:], np.array([0.0]))
-    error = np.max(np.abs(h.temperature_c[1:, 0] - exact[:, 0])) / (850.0 - 20.0)
+    centre = int(np.argmax(result.depth_mm))            # a Result runs from the surface inward
+    error = np.max(np.abs(h.temperature_c[1:, centre] - exact[:, 0])) / (850.0 - 20.0)
     assert error < 0.005
 
 

@@ -48,6 +48,27 @@ def test_hodge_orehoski_50_percent_martensite(carbon):
     assert got == pytest.approx(HO_50_TABLE[carbon], abs=3.0)
 
 
+def test_hodge_orehoski_50_percent_is_no_target_for_martensite_with_bainite():
+    # Issue 12: 50 % martensite + 50 % bainite of a 4140 reads about +7 HRC over Hodge & Orehoski.
+    # Checked against the band it must also meet: at J32 of the 4140H band (30-44 HRC, SAE J1268,
+    # memory) the structure is mostly bainite, and the cooling rate there is about 2 K/s at 700 C
+    # (ASTM A255 scale, 1.94 K/s, memory). Maynier's bainite at that rate reads inside that band, so
+    # it is not too hard. With it, 50/50 martensite and bainite at 10 K/s reads at least the harmonic
+    # (iso-stress) mean, the softest a two-phase mixture can read, and that is still more than 3 HRC
+    # over the A255 table's 41.6 HRC at 0.4 %C: the 50 % martensite hardness of Hodge & Orehoski
+    # (measured where the other half is fine pearlite and ferrite) cannot be met by any mixture rule
+    # with this bainite; the mixture stays as it is and the bar centres' excess is in the fractions.
+    chem = find_grade("4140").nominal
+    bainite_tail = float(hrc_from_hv(phase_hardness_hv(np.array([1.94]), chem)["bainite"][0]))
+    assert 30.0 <= bainite_tail <= 44.0, bainite_tail
+    h = phase_hardness_hv(np.array([10.0]), chem)
+    m, b = float(h["martensite"][0]), float(h["bainite"][0])
+    harmonic = float(hrc_from_hv(2.0 / (1.0 / m + 1.0 / b)))
+    ours = _hrc({"martensite": 0.5, "bainite": 0.5}, 10.0, chem)
+    assert harmonic - HO_50_TABLE[0.4] > 3.0, harmonic
+    assert harmonic <= ours <= float(hrc_from_hv(0.5 * (m + b))), ours
+
+
 def test_linear_mixture_with_fine_pearlite_is_too_hard_at_50_percent_martensite():
     # Why the default mixture is logarithmic: with the corrected (fine) pearlite the arithmetic
     # mean reads 50 % martensite of a 0.5 %C steel more than 3 HRC above Hodge & Orehoski (A255

@@ -62,7 +62,7 @@ HELD_OUT = ("1045", "4130", "5140", "6150", "8640", "4340")
 
 @pytest.fixture(scope="module")
 def physics():
-    cases = [_case(g, "li1998-a255") for g in HELD_OUT] + [_case("4140", "li1998")]
+    cases = [_case(g, "li1998-a255") for g in HELD_OUT] + [_case("4140", "li1998"), _case("4140", "li1998-a255")]
     dis = physics_ideal_diameters(cases, settings=COARSE)
     return {(c.grade, c.model): (d.inches, a255_ideal_diameter(c.composition).inches) for c, d in zip(cases, dis)}
 
@@ -75,7 +75,21 @@ def test_calibrated_physics_di_within_30_percent_of_a255_for_five_held_out_grade
     assert all(0.6 <= r <= 1.5 for r in ratios.values()), ratios
 
 
+#: DI of a 4140 chemistry: 4.5-5.0 in (ASTM A255 factors; DOMAIN.md, memory). Tolerance: the coarse
+#: numerics' 3 % (COARSE above).
+DI_4140_IN = (4.5, 5.0)
+COARSE_TOL = 0.03
+
+
 def test_published_li1998_is_too_hardenable_at_medium_carbon(physics):
-    # Why the calibration exists (kinetics/calibrated.py): 4140 with the published coefficients.
-    di, a255 = physics[("4140", "li1998")]
-    assert 1.2 < di / a255 < 1.5
+    # Why the calibration exists (kinetics/calibrated.py; DOMAIN.md: the published coefficients
+    # come out more hardenable than end-quench data): the simulated DI of 4140 with them lies above
+    # the 4140 DI range by more than the numerics' tolerance.
+    di, _ = physics[("4140", "li1998")]
+    assert di > DI_4140_IN[1] * (1.0 + COARSE_TOL), di
+
+
+def test_calibrated_4140_di_is_in_the_4140_range(physics):
+    # The calibrated model was fitted on 4140's A255 DI: its simulated DI lies in the 4140 range.
+    di, _ = physics[("4140", "li1998-a255")]
+    assert DI_4140_IN[0] * (1.0 - COARSE_TOL) <= di <= DI_4140_IN[1] * (1.0 + COARSE_TOL), di

@@ -17,8 +17,9 @@ Ms, the S(X) law, grain size and undercooling dependence).
 
 Fitted on (and only on): the ASTM A255 composition DI (memory) of the nominal 4140 and 8620
 chemistries at grain size 7, austenitized at 845 C, matched exactly by the physics DI (one grade
-fixes m at 0.405 %C, the other at 0.205 %C). ``python -m quenchwise.kinetics.calibrated``
-repeats the fit and prints the constants.
+fixes m at 0.405 %C, the other at 0.205 %C). The fit is workflows/calibration.py (it needs the
+case loader and the ideal-diameter search, floors above this one):
+``python -m quenchwise.workflows.calibration`` repeats it and prints the constants.
 
 Shown against data not used to fit it (tests/validation/test_ideal_diameter.py and
 test_jominy.py): the A255 DI of other grades (1045, 4130, 5140, 6150, 8640, 4340, ...) and the
@@ -62,53 +63,3 @@ class Li1998A255(Li1998):
     def factors(self, chem: dict) -> dict:
         m = calibration_multiplier(chem["c"], self.ln_m_at_04c, self.carbon_slope)
         return {k: v * m for k, v in super().factors(chem).items()}
-
-
-# -- the fit ------------------------------------------------------------------------------------
-FIT_GRADES = ("4140", "8620")
-FIT_AUSTENITIZE_C = 845.0
-FIT_GRAIN_SIZE = 7.0
-
-
-def fit(iterations: int = 4, verbose: bool = True) -> tuple[float, float]:
-    """Repeat the fit: for each fit grade find the multiplier m at its carbon for which the
-    physics DI equals its A255 DI (Newton in ln m with DI ~ sqrt(K): ln m -= 2 ln(ratio)), then
-    the straight line in ln m through the two. Takes a minute or so."""
-    import tomllib
-    from functools import partial
-
-    from ..case import parse_case
-    from ..hardness.hardenability import a255_ideal_diameter
-    from ..workflows.ideal_diameter import physics_ideal_diameters
-    from . import MODELS
-
-    cases = []
-    for g in FIT_GRADES:
-        text = (f'[steel]\ngrade = "{g}"\ngrain_size = {FIT_GRAIN_SIZE}\naustenitize_c = {FIT_AUSTENITIZE_C}\n'
-                '[part]\nshape = "bar"\ndiameter_mm = 25\n[quench]\nhtc_w_m2k = 1e6\nend_c = 40\n')
-        cases.append(parse_case(tomllib.loads(text), text, f"{g}.toml"))
-    carbon = np.array([c.composition.c for c in cases])
-    target = np.array([a255_ideal_diameter(c.composition).inches for c in cases])
-    ln_m = np.zeros(len(cases))
-    key = "_li1998_a255_fit"
-    try:
-        for _ in range(iterations):
-            slope = (ln_m[0] - ln_m[1]) / (carbon[0] - carbon[1])
-            at04 = ln_m[0] + slope * (0.40 - carbon[0])
-            MODELS[key] = partial(Li1998A255, ln_m_at_04c=float(at04), carbon_slope=float(slope))
-            from dataclasses import replace
-            got = np.array([d.inches for d in physics_ideal_diameters([replace(c, model=key) for c in cases])])
-            ratio = got / target
-            if verbose:
-                print(f"ln m at 0.40 C {at04:+.4f}, slope {slope:+.3f}: DI {np.round(got, 3)} in, "
-                      f"A255 {np.round(target, 3)} in, ratio {np.round(ratio, 3)}")
-            ln_m = ln_m - 2.0 * np.log(ratio)
-    finally:
-        MODELS.pop(key, None)
-    slope = (ln_m[0] - ln_m[1]) / (carbon[0] - carbon[1])
-    return float(ln_m[0] + slope * (0.40 - carbon[0])), float(slope)
-
-
-if __name__ == "__main__":  # pragma: no cover
-    a, b = fit()
-    print(f"LN_M_AT_04C = {a:.4f}\nCARBON_SLOPE = {b:.3f}")

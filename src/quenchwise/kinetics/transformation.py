@@ -142,6 +142,11 @@ class SteelNodes:
                         np.maximum(ferrite_total - self.ferrite0, 0.0))
 
 
+#: What a node is doing (PhaseStepper.stage): forming its proeutectoid product (ferrite or, above
+#: the eutectoid, cementite), pearlite, bainite, or past its Ms (martensite). A node only moves on.
+PROEUTECTOID, PEARLITE, BAINITE, MARTENSITE = 0, 1, 2, 3
+
+
 class PhaseStepper:
     """Advances the phase state of all nodes over a time step; the thermal solver drives it."""
 
@@ -154,8 +159,8 @@ class PhaseStepper:
         self.f["ferrite"] = nodes.ferrite0.copy()
         self.f["cementite"] = nodes.cementite0.copy()
         self.f["austenite"] = nodes.austenite0.copy()
-        self.progress = {name: np.zeros(n) for name in ("pro", "pearlite", "bainite")}
-        self.stage = np.zeros(n, dtype=np.int8)   # 0 proeutectoid, 1 pearlite, 2 bainite, 3 martensite
+        self.progress = {name: np.zeros(n) for name in ("proeutectoid", "pearlite", "bainite")}
+        self.stage = np.full(n, PROEUTECTOID, dtype=np.int8)
         self.base = {"pearlite": np.zeros(n), "bainite": np.zeros(n)}
         self.carbon = nodes.carbon0.copy()
         self.ms_at_start = nodes.ms(nodes.carbon0)
@@ -180,7 +185,7 @@ class PhaseStepper:
         t_mid = 0.5 * (t_old + t_new)
         self._record_rate(t_old, t_new, dt)
 
-        diffusional = self.stage < 3
+        diffusional = self.stage < MARTENSITE
         under = {
             "ferrite": np.where(nodes.hyper, -1.0, nodes.pro_start - t_mid),
             "cementite": np.where(nodes.hyper, nodes.pro_start - t_mid, -1.0),
@@ -190,15 +195,16 @@ class PhaseStepper:
         k = self.model.time_constants(self.factors, nodes.grain_size, t_mid, under)
         k_pro = np.where(nodes.hyper, k["cementite"], k["ferrite"])
         dt = np.broadcast_to(np.asarray(dt, dtype=float), t_mid.shape)
-        for name, k_p, stages in (("pro", k_pro, self.stage == 0), ("pearlite", k["pearlite"], self.stage <= 1),
-                                  ("bainite", k["bainite"], self.stage <= 2)):
+        for name, k_p, stages in (("proeutectoid", k_pro, self.stage == PROEUTECTOID),
+                                  ("pearlite", k["pearlite"], self.stage <= PEARLITE),
+                                  ("bainite", k["bainite"], self.stage <= BAINITE)):
             self.progress[name] += np.where(diffusional & stages & (dt > 0),
                                             dt / np.maximum(k_p, _MIN_TIME_CONSTANT_S), 0.0)
 
         # Proeutectoid ferrite / cementite, capped by equilibrium at the current temperature.
-        grow = diffusional & (self.stage == 0)
+        grow = diffusional & (self.stage == PROEUTECTOID)
         if grow.any():
-            x = self.model.fraction("pro", self.progress["pro"], self.factors)
+            x = self.model.fraction("proeutectoid", self.progress["proeutectoid"], self.factors)
             target = x * nodes.proeutectoid_equilibrium(t_new)
             formed_f = np.where(grow & ~nodes.hyper, np.maximum(f["ferrite"] - nodes.ferrite0, target), f["ferrite"] - nodes.ferrite0)
             formed_c = np.where(grow & nodes.hyper, np.maximum(f["cementite"] - nodes.cementite0, target), f["cementite"] - nodes.cementite0)
@@ -215,28 +221,28 @@ class PhaseStepper:
         # Pearlite, then bainite: start when the incubation sum reaches X = 0.01.
         x_p = self.model.fraction("pearlite", self.progress["pearlite"], self.factors)
         x_b = self.model.fraction("bainite", self.progress["bainite"], self.factors)
-        start_b = diffusional & (self.stage < 2) & (x_b >= START_FRACTION)
-        start_p = diffusional & (self.stage < 1) & (x_p >= START_FRACTION) & ~start_b
+        start_b = diffusional & (self.stage < BAINITE) & (x_b >= START_FRACTION)
+        start_p = diffusional & (self.stage < PEARLITE) & (x_p >= START_FRACTION) & ~start_b
         self.base["pearlite"] = np.where(start_p, f["austenite"], self.base["pearlite"])
-        self.stage[start_p] = 1
-        on = diffusional & (self.stage == 1)
+        self.stage[start_p] = PEARLITE
+        on = diffusional & (self.stage == PEARLITE)
         f["pearlite"] = np.where(on, np.maximum(f["pearlite"], x_p * self.base["pearlite"]), f["pearlite"])
         self._update_austenite()
         self.base["bainite"] = np.where(start_b, f["austenite"], self.base["bainite"])
-        self.stage[start_b] = 2
-        on = diffusional & (self.stage == 2)
+        self.stage[start_b] = BAINITE
+        on = diffusional & (self.stage == BAINITE)
         f["bainite"] = np.where(on, np.maximum(f["bainite"], x_b * self.base["bainite"]), f["bainite"])
         self._update_austenite()
 
         # Martensite below the Ms of the austenite left.
         ms_now = nodes.ms(self.carbon)
-        cross = (self.stage < 3) & (t_new <= ms_now)
+        cross = (self.stage < MARTENSITE) & (t_new <= ms_now)
         if cross.any():
             self.ms = np.where(cross, ms_now, self.ms)
             self.austenite_at_ms = np.where(cross, f["austenite"], self.austenite_at_ms)
-            self.stage[cross] = 3
+            self.stage[cross] = MARTENSITE
         np.minimum(self.t_min, t_new, out=self.t_min)
-        below = self.stage == 3
+        below = self.stage == MARTENSITE
         if below.any():
             fm = self.austenite_at_ms * koistinen_marburger(np.where(below, self.ms, 0.0), self.t_min, nodes.alpha)
             f["martensite"] = np.where(below, np.maximum(f["martensite"], fm), f["martensite"])

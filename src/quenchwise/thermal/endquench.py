@@ -28,16 +28,16 @@ Geometry. It does not import the kinetics package: it drives any object with
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Callable
 
 import fipy as fp
 import numpy as np
-from scipy.optimize import brentq
 
-from .integrator import Geometry, Integrator, rate_through
+from .integrator import CoolingHistory, Geometry, Integrator, rate_through
 from .properties import DENSITY_KG_M3, ConstantOverrides
 from .quenchants import Quenchant
+from .settings import StepControl
 from .surfaces import Surfaces
 
 #: ASTM A255 reading depth: hardness is read on two flats ground 0.015 in (0.38 mm) deep along
@@ -106,18 +106,15 @@ def still_air(ambient_c: float = 20.0) -> Quenchant:
 
 
 @dataclass(frozen=True)
-class EndQuenchSettings:
-    """Mesh and step control. radial_cells = 1 is the 1-D axial model (cross-section lumped)."""
+class EndQuenchSettings(StepControl):
+    """Mesh of the specimen, with the step limits of StepControl. radial_cells = 1 is the 1-D axial
+    model (cross-section lumped)."""
 
     radial_cells: int = 6
     axial_cells: int = 48
     first_axial_m: float = 0.25e-3      # first cell at the quenched end; geometric growth to the far end
     radial_growth: float = 1.2          # cell width ratio from the side towards the axis
-    max_temperature_step_k: float = 12.0
-    max_fraction_step: float = 0.05
-    max_relative_step: float = 0.15
     first_step_s: float = 0.002
-    max_step_growth: float = 1.5
     max_steps: int = 20000
     max_time_s: float = 3.0e4
 
@@ -139,21 +136,15 @@ class EndQuenchBar:
     specific_heat_j_kgk: float | None = None
 
 
-@dataclass
-class EndQuenchHistory:
-    """Cooling history of one specimen on its (r, z) cells (r fastest in the flat cell order)."""
+@dataclass(kw_only=True)
+class EndQuenchHistory(CoolingHistory):
+    """Cooling history of one specimen (integrator.CoolingHistory; energies per radian) on its
+    (r, z) cells, r fastest in the flat cell order: temperature_c is (n_t, nz * nr)."""
 
-    name: str
     r_m: np.ndarray                 # (nr,) cell-centre radii
     z_m: np.ndarray                 # (nz,) cell-centre distances from the quenched end
     dr_m: np.ndarray
     dz_m: np.ndarray
-    time_s: np.ndarray
-    temperature_c: np.ndarray       # (n_t, nz * nr)
-    heat_out_j: float = 0.0         # energy through all surfaces [J per radian]
-    latent_j: float = 0.0           # latent heat released [J per radian]
-    steps: int = 0
-    extra: dict = field(default_factory=dict)
 
     @property
     def shape(self) -> tuple[int, int]:
@@ -184,7 +175,12 @@ def graded_widths(total_m: float, cells: int, first_m: float) -> np.ndarray:
     """
     if cells * first_m >= total_m:
         return np.full(cells, total_m / cells)
-    g = brentq(lambda q: first_m * (q ** cells - 1.0) / (q - 1.0) - total_m, 1.0 + 1e-9, 10.0)
+    # The sum first_m (q^n - 1) / (q - 1) grows with the ratio q: bisect for it (60 halvings of
+    # [1, 10] leave q exact to round-off).
+    low, high = 1.0 + 1e-12, 10.0
+    for _ in range(60):
+        g = 0.5 * (low + high)
+        low, high = (g, high) if first_m * (g ** cells - 1.0) / (g - 1.0) < total_m else (low, g)
     w = first_m * g ** np.arange(cells)
     return w * (total_m / w.sum())
 

@@ -106,6 +106,21 @@ class Geometry:
         return np.repeat(np.arange(len(self.member_counts)), self.member_counts)
 
 
+@dataclass(kw_only=True)
+class CoolingHistory:
+    """Cooling history of one body: times, cell temperatures (n_t, cells) and the energies through
+    its surfaces and released as latent heat, in the mesh's measure. The solvers extend it with
+    their geometry (solver.CaseHistory, endquench.EndQuenchHistory)."""
+
+    name: str
+    time_s: np.ndarray
+    temperature_c: np.ndarray
+    heat_out_j: float = 0.0
+    latent_j: float = 0.0
+    steps: int = 0
+    extra: dict = field(default_factory=dict)
+
+
 @dataclass
 class Integration:
     """What the integrator returns, per member (energies in the mesh's measure)."""

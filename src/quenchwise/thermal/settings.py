@@ -30,15 +30,13 @@ def mesh_growth(cells: int, growth: float, graded_cells: int | None = None) -> f
 
 
 @dataclass(frozen=True)
-class SolverSettings:
-    """Numerics: mesh cells per section, geometric growth of cell width away from quenched
-    surfaces, and the per-step limits of the adaptive time step.
+class StepControl:
+    """Limits of the adaptive time step of the integrator (thermal/integrator.py), shared by the
+    settings of every solver: per step, about max_temperature_step_k of temperature change,
+    max_fraction_step of phase fraction and max_relative_step of a node's distance from the bath;
+    the step grows by at most max_step_growth; a solve stops with an error after max_steps steps or
+    max_time_s of quench time."""
 
-    first_step_s = 1 ms resolves the first instants at a severe surface (error at the surface of a
-    Bi = 10 section 0.1 % instead of 0.9 % with 5 ms) for about 4 more steps per case."""
-
-    cells: int = 40
-    growth: float = 1.08
     max_temperature_step_k: float = 12.0
     max_fraction_step: float = 0.05
     max_relative_step: float = 0.15
@@ -46,6 +44,18 @@ class SolverSettings:
     max_step_growth: float = 1.5
     max_steps: int = 50000
     max_time_s: float = 1.0e6
+
+
+@dataclass(frozen=True)
+class SolverSettings(StepControl):
+    """Numerics of the sections: mesh cells per section and geometric growth of cell width away from
+    quenched surfaces, with the step limits of StepControl.
+
+    first_step_s = 1 ms resolves the first instants at a severe surface (error at the surface of a
+    Bi = 10 section 0.1 % instead of 0.9 % with 5 ms) for about 4 more steps per case."""
+
+    cells: int = 40
+    growth: float = 1.08
 
     def refined(self, times: int = 1) -> "SolverSettings":
         """The same numerics with the cells doubled and the step limits halved `times` times."""

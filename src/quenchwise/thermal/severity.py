@@ -37,8 +37,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.interpolate import PchipInterpolator
 
+from ..interpolation import pchip
 from .geometry import Section
 from .quenchants import GROSSMANN_CONDUCTIVITY_W_MK, Quenchant, grossmann_from_htc, htc_from_grossmann
 from .solver import BatchSolver, SolverSettings, ThermalCase
@@ -150,7 +150,7 @@ def _invert(t_ref: np.ndarray, htc: np.ndarray, t_curve: float) -> tuple[float, 
         return float("nan"), f"faster than the sweep's top (H > {grossmann_from_htc(htc[-1]):.3g} 1/in)"
     if lt > x[-1]:
         return float("nan"), f"slower than the sweep's bottom (H < {grossmann_from_htc(htc[0]):.3g} 1/in)"
-    return float(np.exp(PchipInterpolator(x, y)(lt))), ""
+    return float(np.exp(pchip(x, y, lt))), ""
 
 
 def grossmann_h_values(quenchants: list) -> list[float | None]:

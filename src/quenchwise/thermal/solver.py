@@ -39,14 +39,14 @@ tests/validation/test_conduction_analytic.py checks it independently.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import Callable
 
 import fipy as fp
 import numpy as np
 
 from .geometry import Section
-from .integrator import FRACTION_TOLERANCE, GUARD_TOLERANCE_K, Geometry, Integrator  # noqa: F401
+from .integrator import FRACTION_TOLERANCE, GUARD_TOLERANCE_K, CoolingHistory, Geometry, Integrator  # noqa: F401
 from .properties import DENSITY_KG_M3, ConstantOverrides
 from .quenchants import Quenchant
 from ..errors import SolverError  # noqa: F401  (re-exported: callers catch it from here too)
@@ -88,27 +88,20 @@ class ThermalCase:
             raise ValueError(f"case {self.name!r}: no quenched surface, the section would never cool")
 
 
-@dataclass
-class CaseHistory:
-    """Cooling history of one section: times, node temperatures and surface energy.
+@dataclass(kw_only=True)
+class CaseHistory(CoolingHistory):
+    """Cooling history of one section (integrator.CoolingHistory) with its nodes, inner end first.
 
     Energies are per unit angle (radian) of a cylinder or sphere and per metre of length of a
     cylinder, per square metre of a plate: multiply by the section's measure for totals.
     extra: "heat_out_outer_j", "heat_out_inner_j" (the two surfaces separately).
     """
 
-    name: str
     section: Section
     radius_m: np.ndarray            # cell centres, from the inner end
     cell_width_m: np.ndarray
     volume_weight: np.ndarray       # cell volume per unit angle / cell width
-    time_s: np.ndarray
-    temperature_c: np.ndarray       # (n_t, n_x)
     surface_c: np.ndarray           # (n_t,) outer surface temperature estimate
-    heat_out_j: float = 0.0         # energy through the surfaces (measure: see class docstring)
-    latent_j: float = 0.0           # latent heat released, same measure
-    steps: int = 0
-    extra: dict = field(default_factory=dict)
 
 
 class BatchSolver:

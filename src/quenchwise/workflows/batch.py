@@ -14,9 +14,10 @@ from ..case import Case
 from ..hardness import hardness_hv, hrc_from_hv
 from ..hardness.hardenability import a255_ideal_diameter
 from ..hardness.tempering import tempered_hardness_hv
-from ..kinetics import MODELS, PhaseStepper, SteelNodes
-from ..results import Result
+from ..kinetics import PhaseStepper, SteelNodes, kinetics_model
+from ..results import Result, surface_first
 from ..steel import austenitize
+from ..thermal.integrator import rate_through
 from ..thermal.solver import BatchSolver, ThermalCase
 
 #: Temperature the part reaches after the quench, when martensite formation ends [C].
@@ -47,7 +48,7 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
         if model != "none":
             nodes = SteelNodes.from_states([states[i] for i in members], [cases[i].grain_size for i in members],
                                            list(solver.counts), martensite_law=martensite)
-            stepper = PhaseStepper(nodes, MODELS[model](), solver.initial)
+            stepper = PhaseStepper(nodes, kinetics_model(model), solver.initial)
         share = len(members) / len(cases)
         report = None
         if progress is not None:
@@ -70,7 +71,7 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
                              "martensite": np.zeros(n), "austenite": np.full(n, state.austenite),
                              "cementite": np.full(n, state.cementite)}
                 hv = np.full(n, np.nan)
-                rate = _rate_700(history)
+                rate = rate_through(history.time_s, history.temperature_c, 700.0)
                 ms = np.full(n, np.nan)
             else:
                 fractions = {k: v[sl].copy() for k, v in stepper.fractions().items()}
@@ -78,8 +79,12 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
                 chem = state.austenite_composition.as_dict()
                 hv = hardness_hv(fractions, rate, chem, undissolved_cementite=state.cementite)
                 ms = stepper.ms_at_start[sl].copy()
-            result = Result(case=case, state=state, history=history, fractions=fractions, hv=hv,
-                            hrc=hrc_from_hv(hv), cooling_rate_700_c_s=rate, ms_c=float(ms[0]) if n else np.nan)
+            # The solver's nodes run from the centre outward; a Result runs from the surface inward.
+            # Ms of the austenite at the start, at the centre node (the solver's first).
+            result = Result(case=case, state=state, history=surface_first(history),
+                            fractions={k: v[::-1] for k, v in fractions.items()}, hv=hv[::-1],
+                            hrc=hrc_from_hv(hv[::-1]), cooling_rate_700_c_s=rate[::-1],
+                            ms_c=float(ms[0]) if n else np.nan)
             _add_hardness_extras(result)
             results[i] = result
     return results  # type: ignore[return-value]
@@ -123,17 +128,3 @@ def attach_equivalent_severity(results: list[Result]) -> None:
     values = grossmann_h_values([q for r in results for q in (r.case.outer, r.case.inner)])
     for i, r in enumerate(results):
         r.extra["equivalent_h"] = {"outer": values[2 * i], "inner": values[2 * i + 1]}
-
-
-def _rate_700(history) -> np.ndarray:
-    """Cooling rate at 700 C of each node from the stored history (pure conduction runs): over the
-    first step in which the node passes 700 C; NaN where it never does."""
-    t, temp = history.time_s, history.temperature_c
-    out = np.full(temp.shape[1], np.nan)
-    if temp.shape[0] < 2:
-        return out
-    crossed = (temp[:-1] > 700.0) & (temp[1:] <= 700.0)          # (steps, nodes)
-    has = crossed.any(axis=0)
-    i, j = np.argmax(crossed, axis=0)[has], np.flatnonzero(has)
-    out[has] = (temp[i, j] - temp[i + 1, j]) / (t[i + 1] - t[i])
-    return out

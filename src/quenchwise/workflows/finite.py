@@ -15,9 +15,11 @@ import numpy as np
 
 from ..hardness import hardness_hv, hrc_from_hv
 from ..hardness.tempering import tempered_hardness_hv
-from ..kinetics import MODELS, PhaseStepper, SteelNodes
+from ..kinetics import PhaseStepper, SteelNodes, kinetics_model
+from ..results import surface_first
 from ..results_rz import PartField, PartResult
 from ..steel import austenitize
+from ..thermal.integrator import rate_through
 from ..thermal.part_rz import PartMember, build_geometry, integrate, radial_faces
 from ..thermal.solver import CaseHistory
 from .batch import ROOM_C, _add_hardness_extras
@@ -83,7 +85,7 @@ def simulate_finite(cases: list, progress: Callable[[float], None] | None = None
         if model != "none":
             nodes = SteelNodes.from_states([states[i] for i in members], [cases[i].grain_size for i in members],
                                            list(geometry.member_counts), martensite_law=martensite)
-            stepper = PhaseStepper(nodes, MODELS[model](), geometry.initial_c)
+            stepper = PhaseStepper(nodes, kinetics_model(model), geometry.initial_c)
         share = len(members) / len(cases)
         report = None if progress is None else (lambda f, base=done, share=share: progress(base + share * f))
         run = integrate(geometry, settings, stepper, report)
@@ -132,7 +134,7 @@ def _part_result(case, state, geometry, j: int, run, stepper) -> PartResult:
                      "martensite": np.zeros(n), "austenite": np.full(n, state.austenite),
                      "cementite": np.full(n, state.cementite)}
         hv = np.full(n, np.nan)
-        rate = _rate_700(run.time_s[j], run.temperature_c[j])
+        rate = rate_through(run.time_s[j], run.temperature_c[j], 700.0)
         ms = np.nan
     else:
         fractions = {k: np.asarray(v[sl], dtype=float).copy() for k, v in stepper.fractions().items()}
@@ -165,10 +167,11 @@ def _part_result(case, state, geometry, j: int, run, stepper) -> PartResult:
                           volume_weight=field.r_m.copy(), time_s=field.time_s, temperature_c=line(temperature),
                           surface_c=run.surface_c[j], heat_out_j=field.heat_out_j, latent_j=field.latent_j,
                           steps=field.steps, extra={"geometry": "rz"})
-    line_fr = {k: line(v) for k, v in fractions.items()}
-    line_hv = line(hv)
-    result = PartResult(case=case, state=state, history=history, fractions=line_fr, hv=line_hv, hrc=hrc_from_hv(line_hv),
-                        cooling_rate_700_c_s=line(rate), ms_c=ms, field=field)
+    # The grid's radial rows run from the axis outward; a Result runs from the surface inward.
+    line_fr = {k: line(v)[::-1] for k, v in fractions.items()}
+    line_hv = line(hv)[::-1]
+    result = PartResult(case=case, state=state, history=surface_first(history), fractions=line_fr, hv=line_hv,
+                        hrc=hrc_from_hv(line_hv), cooling_rate_700_c_s=line(rate)[::-1], ms_c=ms, field=field)
     _add_hardness_extras(result)
     temper = getattr(case, "temper", None)
     if temper is not None and stepper is not None:
@@ -177,15 +180,4 @@ def _part_result(case, state, geometry, j: int, run, stepper) -> PartResult:
         field.hv_tempered = np.where(solid, hv_t, np.nan)
         field.hrc_tempered = hrc_from_hv(field.hv_tempered)
     return result
-
-
-def _rate_700(time_s, temperature_c) -> np.ndarray:
-    from .batch import _rate_700 as rate
-
-    class _H:
-        pass
-
-    h = _H()
-    h.time_s, h.temperature_c = time_s, temperature_c
-    return rate(h)
 

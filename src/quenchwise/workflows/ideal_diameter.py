@@ -62,7 +62,7 @@ def _centre_martensite(cases: list[Case], diameters: list[np.ndarray], settings:
     results = simulate(bars, progress)
     out, k = [], 0
     for ds in diameters:
-        out.append(np.array([float(r.fractions["martensite"][0]) for r in results[k:k + len(ds)]]))
+        out.append(np.array([float(r.fractions["martensite"][np.argmax(r.depth_mm)]) for r in results[k:k + len(ds)]]))
         k += len(ds)
     return out
 

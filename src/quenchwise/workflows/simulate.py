@@ -8,17 +8,23 @@ uses directly, so that the end-quench fit (workflows.jominy -> ideal_diameter) d
 
 from __future__ import annotations
 
+from dataclasses import replace
 from typing import Callable
 
 from ..case import Case
 from ..results import Result
-from .batch import ROOM_C, _rate_700, attach_equivalent_severity  # noqa: F401  (the module's former names)
+from .batch import ROOM_C, attach_equivalent_severity  # noqa: F401  (the module's former names)
 from .batch import simulate as simulate_batch
 
 
-def simulate(cases: list[Case], progress: Callable[[float], None] | None = None) -> list[Result]:
+def simulate(cases: list[Case], progress: Callable[[float], None] | None = None, model=None) -> list[Result]:
     """Results for every case, in order; cases with the same numerics and model share one solve.
-    A case with a measured end-quench curve is first fitted to it (workflows.heat_fit)."""
+    A case with a measured end-quench curve is first fitted to it (workflows.heat_fit).
+
+    model: solve every case with this kinetics model instead of its own ``model``: a name of
+    kinetics.MODELS or a model object (e.g. trial coefficients); None keeps each case's."""
+    if model is not None:
+        cases = [replace(c, model=model) for c in cases]
     cases, fits = _fit_measured(cases)
     results = _simulate_split(cases, progress)
     for i, fit in fits.items():
@@ -49,9 +55,9 @@ def _simulate_split(cases: list[Case], progress) -> list[Result]:
     return results
 
 
-def simulate_case(case: Case, progress: Callable[[float], None] | None = None) -> Result:
+def simulate_case(case: Case, progress: Callable[[float], None] | None = None, model=None) -> Result:
     """One case: a batch of one."""
-    return simulate([case], progress)[0]
+    return simulate([case], progress, model)[0]
 
 
 #: Heat fits done in this process, by steel and curve: `size` solves the same case in several
