@@ -292,7 +292,7 @@ def finite_bar(ctx, repeat):
         return rows
     settings = part_settings(finite)
     geometry = build_geometry([part_member(0, finite)], settings)
-    free_t, _, _, run = timed(lambda: Integrator(geometry.integrator_geometry(), settings).run(), 1)
+    free_t, _, _, run = timed(lambda: Integrator(geometry, settings).run(), 1)
     return rows + [("(r) (r, z) conduction only, BLAS threads at the library default: wall", free_t, "s", None),
                    ("(r) ... steps", int(run.steps[0]), "", None)]
 

@@ -31,7 +31,9 @@ import fipy as fp
 import numpy as np
 
 from .part_shape import FinitePart, PartSettings, first_width, widths_from_first
+from .integrator import Geometry, Integrator
 from .properties import DENSITY_KG_M3, ConstantOverrides
+from .surfaces import Surfaces
 
 TAGS = ("side", "bore", "lower_end", "upper_end", "shoulder")
 
@@ -51,27 +53,13 @@ class PartMember:
     specific_heat_j_kgk: float | None = None
 
 
-@dataclass
-class PartGeometry:
-    """The integrator's Geometry (INTEGRATOR.md, same field names) plus what the results need:
-    per member its cell-centre radii and heights, cell widths, and each surface row's tag."""
+@dataclass(kw_only=True)
+class PartGeometry(Geometry):
+    """The integrator's Geometry plus what the results need: per member its cell-centre radii and
+    heights, cell widths, the surface rows as given to Surfaces (member, cell, area, half_m,
+    quenchant, tag) and each cooled face's centre."""
 
-    mesh: object
-    member_starts: np.ndarray
-    member_counts: np.ndarray
-    capacity: np.ndarray
-    density_kg_m3: np.ndarray
-    initial_c: np.ndarray
-    end_c: np.ndarray
-    overrides: ConstantOverrides
-    face_cells: np.ndarray
-    face_ids: np.ndarray
-    face_half_m: np.ndarray
-    face_weight: np.ndarray
-    surface_rows: list            # (member, cell, area, half_m, quenchant, tag): the Surfaces entries
-    names: list
-    solid: np.ndarray
-    record_surface_row: np.ndarray
+    surface_rows: list
     r_m: np.ndarray               # (nr,) cell-centre radii, shared by the members
     dr_m: np.ndarray
     z_m: list = field(default_factory=list)    # per member (nz,) cell-centre heights from its lower end
@@ -82,30 +70,10 @@ class PartGeometry:
     def nr(self) -> int:
         return self.r_m.size
 
-    CONTRACT_FIELDS = ("mesh", "member_starts", "member_counts", "capacity", "density_kg_m3", "initial_c", "end_c",
-                       "overrides", "face_cells", "face_ids", "face_half_m", "face_weight", "names", "solid",
-                       "record_surface_row")
-
-    def integrator_geometry(self):
-        """The shared integrator's Geometry (thermal/integrator.py) of this batch."""
-        from .integrator import Geometry
-        from .surfaces import Surfaces
-
-        return Geometry(surfaces=Surfaces(self.surface_rows), **{k: getattr(self, k) for k in self.CONTRACT_FIELDS})
-
 
 def integrate(geometry: PartGeometry, settings, stepper=None, progress=None, assembly: str = "banded"):
-    """Run a batch of parts with the shared integrator: Integrator(geometry, settings).run(...).
-
-    BLAS runs on one thread here: the banded Cholesky of an (r, z) batch (bandwidth = radial
-    cells) is small, and OpenBLAS's threads made it 15-30 times slower on a busy 2-core machine
-    (12.8 ms instead of 0.4 ms per solve of a 50 x 100 mm bar; benchmarks/README.md)."""
-    from threadpoolctl import threadpool_limits
-
-    from .integrator import Integrator
-
-    with threadpool_limits(limits=1, user_api="blas"):
-        return Integrator(geometry.integrator_geometry(), settings, assembly=assembly).run(stepper, progress)
+    """Run a batch of parts with the shared integrator: Integrator(geometry, settings).run(...)."""
+    return Integrator(geometry, settings, assembly=assembly).run(stepper, progress)
 
 
 def radial_faces(part: FinitePart, settings: PartSettings) -> np.ndarray:
@@ -234,7 +202,7 @@ def build_geometry(members: list[PartMember], settings: PartSettings = PartSetti
         end_c=np.array([m.end_c for m in members], dtype=float),
         overrides=ConstantOverrides(per_cell("conductivity_w_mk", np.nan), per_cell("specific_heat_j_kgk", np.nan)),
         face_cells=face_cells, face_ids=face_ids, face_half_m=face_half, face_weight=np.ones(face_ids.size),
-        surface_rows=surface_rows, names=[m.name for m in members], solid=solid, record_surface_row=record,
+        surfaces=Surfaces(surface_rows), surface_rows=surface_rows, names=[m.name for m in members], solid=solid, record_surface_row=record,
         r_m=r_c, dr_m=dr, z_m=z_members, dz_m=dz_members, surface_points=np.array(surface_points, dtype=float),
     )
 
