@@ -271,6 +271,43 @@ def commands(ctx, repeat):
     return benchmark_rows(repeat, bool(ctx.get("quick")))
 
 
+@benchmark("finite_bar")
+def finite_bar(ctx, repeat):
+    """Issue 17: one 50 x 100 mm bar of 4140 in (r, z) (24 x 48 cells, all faces in moderately agitated
+    conventional oil) with kinetics and hardness on every cell, through workflows.simulate, beside
+    the 1-D 50 mm bar of the same case in the same run; and the same (r, z) solve with OpenBLAS's
+    threads left at the library default (part_rz.integrate limits them to one)."""
+    from quenchwise.case import load_case
+    from quenchwise.thermal.integrator import Integrator
+    from quenchwise.thermal.part_rz import build_geometry
+    from quenchwise.workflows import simulate
+    from quenchwise.workflows.finite import part_member, part_settings
+
+    base = {"title": "4140 bar (benchmark)", "steel": {"grade": "4140"},
+            "quench": {"medium": "oil_conventional_60c_moderate"}}
+    finite = load_case({**base, "part": {"shape": "bar", "diameter_mm": 50, "length_mm": 100}})
+    flat = load_case({**base, "part": {"shape": "bar", "diameter_mm": 50}})
+    rz_t, rz_med, rz_cpu, [rz] = timed(lambda: simulate([finite]), repeat)
+    one_t, _, one_cpu, [one] = timed(lambda: simulate([flat]), repeat)
+    rows = [("(r) 50 x 100 mm bar in (r, z), kinetics + hardness: wall time", rz_t, "s", 10.0),
+            (f"(r) ... median of {repeat}", rz_med, "s", None),
+            ("(r) ... CPU time", rz_cpu, "s", None),
+            ("(r) ... cells / steps", f"{int(rz.field.solid.sum())} / {rz.history.steps}", "", None),
+            ("(r) 50 mm bar in 1-D, same case: wall time", one_t, "s", None),
+            ("(r) ... nodes / steps", f"{one.history.radius_m.size} / {one.history.steps}", "", None),
+            ("(r) (r, z) / 1-D wall time", rz_t / one_t, "", None),
+            ("(r) ... on CPU time", rz_cpu / one_cpu, "", None),
+            ("(r) mid-length centre HRC (r, z) / 1-D centre", f"{rz.summary()['points'][2]['hrc']} / "
+                                                                f"{one.summary()['points'][2]['hrc']}", "", None)]
+    if ctx.get("quick"):
+        return rows
+    settings = part_settings(finite)
+    geometry = build_geometry([part_member(0, finite)], settings)
+    free_t, _, _, run = timed(lambda: Integrator(geometry, settings).run(), 1)
+    return rows + [("(r) (r, z) conduction only, BLAS threads at the library default: wall", free_t, "s", None),
+                   ("(r) ... steps", int(run.steps[0]), "", None)]
+
+
 def machine() -> list[str]:
     cpu = "unknown"
     try:

@@ -18,6 +18,7 @@ from pathlib import Path
 from .errors import InputError
 from .tomltext import toml_text
 from .measured import read_measured_jominy
+from .part_case import FINITE_KEYS, parse_part
 from .steel.composition import ELEMENTS, Composition
 from .steel.austenite import austenitize
 from .steel.grades import find_grade
@@ -29,13 +30,13 @@ from .units import US_KEYS, si_keys
 SECTIONS = {
     "title": {},
     "steel": {"grade", "grain_size", "austenitize_c", "measured_jominy", *ELEMENTS},
-    "part": {"shape", "thickness_mm", "diameter_mm", "outer_diameter_mm", "inner_diameter_mm", "faces"},
+    "part": {"shape", "thickness_mm", "diameter_mm", "outer_diameter_mm", "inner_diameter_mm", "faces"} | FINITE_KEYS["part"],
     "quench": {"medium", "htc_w_m2k", "severity_h", "bath_c", "end_c", "kind", "agitation", "concentration_pct",
-               "inner_medium", "inner_htc_w_m2k", "inner_severity_h", "inner_bath_c"},
+               "inner_medium", "inner_htc_w_m2k", "inner_severity_h", "inner_bath_c"} | FINITE_KEYS["quench"],
     "temper": {"temperature_c", "hours"},
     "transform": {"model", "martensite"},
     "thermal": {"conductivity_w_mk", "density_kg_m3", "specific_heat_j_kgk"},
-    "mesh": {"cells", "growth", "max_temperature_step_k", "max_fraction_step", "max_relative_step"},
+    "mesh": {"cells", "growth", "max_temperature_step_k", "max_fraction_step", "max_relative_step"} | FINITE_KEYS["mesh"],
     "requirement": {"min_hrc", "min_martensite_pct", "depth_mm"},
     "compare": {"media"},
     "record": set(),  # filled below from RECORD_KEYS
@@ -50,7 +51,7 @@ MODELS = ("li1998", "kirkaldy1983", "li1998-a255", "li1998-multigrade", "none")
 #: multigrade.py, benchmarks/calibrate_kinetics.py, benchmarks/accuracy.md); "li1998" stays selectable.
 DEFAULT_MODEL = "li1998-multigrade"
 MARTENSITE_LAWS = ("koistinen_marburger", "van_bohemen_sietsma")
-SHAPE_NAMES = ("plate", "bar", "tube", "sphere")
+SHAPE_NAMES = ("plate", "bar", "tube", "sphere", "stepped_shaft")
 #: Default end of the quench: the hottest point of the section below this [C] ...
 DEFAULT_END_C = 60.0
 #: ... or this far above the hottest bath, for baths at or above DEFAULT_END_C (60 C oils, hot oil):
@@ -132,6 +133,7 @@ class Case:
     #: [steel] measured_jominy: the heat's end-quench curve (measured.MeasuredCurve); the
     #: steel is fitted to it before a solve (workflows.heat_fit), which then sets this to None.
     measured_jominy: object = None
+    finite: object = None   # part_case.FiniteSpec: a finite part solved in (r, z) (issue 17); None: the 1-D section
 
     @property
     def source_sha256(self) -> str:
@@ -317,7 +319,7 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         path = Path(v) if Path(v).is_absolute() else base_dir / v
         measured = read_measured_jominy(path)
 
-    section, dims = _section(data["part"])
+    section, dims, finite = parse_part(data, _section, _number, base_dir)
     q = data["quench"]
     outer = _quenchant(q, "", base_dir, None)
     inner = None
@@ -372,16 +374,14 @@ def parse_case(data: dict, source_text: str = "", source_name: str = "", base_di
         growth=_number(m, "mesh", "growth", 1.0, 1.5, default=d.growth),
         max_temperature_step_k=_number(m, "mesh", "max_temperature_step_k", 1.0, 100.0, default=d.max_temperature_step_k),
         max_fraction_step=_number(m, "mesh", "max_fraction_step", 0.005, 0.5, default=d.max_fraction_step),
-        max_relative_step=_number(m, "mesh", "max_relative_step", 0.01, 1.0, default=d.max_relative_step),
-    )
+        max_relative_step=_number(m, "mesh", "max_relative_step", 0.01, 1.0, default=d.max_relative_step))
     return Case(
         title=title, composition=composition, grade=grade, grain_size=grain, austenitize_c=aust, section=section,
         outer=outer, inner=inner, end_c=end_c, model=model, martensite=martensite, temper=temper,
         conductivity_w_mk=k, density_kg_m3=rho, specific_heat_j_kgk=cp, settings=settings,
         requirement=requirement, compare_media=compare_media, dimensions_mm=dims,
         source_text=source_text, source_name=source_name, record=_record(data.get("record", {})),
-        measured_jominy=measured,
-    )
+        measured_jominy=measured, finite=finite)
 
 
 def _did_you_mean(word: str, choices) -> str:

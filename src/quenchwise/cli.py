@@ -17,8 +17,9 @@ import typer
 from . import publish
 from .cautions import CAUTION
 from .cli_support import (_activity, _check_out_dir, _emit, _guard, _page, _publish, _quench, _refined,  # noqa: F401
-                          _requirement_from_options, _run_case, _sheet_note, _solve, _units_option, _write_csv,
-                          _figures, _figures_option, _json_option, _overwrite_option, _units_choice, interrupted)
+                          _requirement_from_options, _run_case, _run_files, _sheet_note, _solve, _units_option,
+                          _write_csv, _figures, _figures_option, _json_option, _overwrite_option, _units_choice,
+                          interrupted)
 from .errors import InputError
 from .version import __version__
 
@@ -68,7 +69,7 @@ def run(
             hardness_figure(result, staging, u)
             cooling_figure(result, staging, u)
 
-        files = _publish(out, write) if out is not None else []
+        files = _publish(out, _run_files(result, write, u)) if out is not None else []
         summary = result.summary()
         if json_out:
             typer.echo(json.dumps({**summary, "files": [str(f) for f in files], "caution": CAUTION}))

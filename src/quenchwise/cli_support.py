@@ -252,6 +252,17 @@ def _run_case(case_file, quick: dict, out, overwrite: bool):
     return load_case(case_file)
 
 
+def _run_files(result, write, units):
+    """The writer of `run`'s output folder: `write` for a 1-D section; for a finite part in (r, z)
+    its own files (part_maps.write_part_files: result.h5 per cell, profile.csv along the mid-length
+    radius, profile_axial.csv, the hardness and martensite maps)."""
+    if not getattr(result, "finite", False):
+        return write
+    from .part_maps import write_part_files
+
+    return lambda staging: write_part_files(result, staging, units)
+
+
 def _requirement_from_options(case, min_hrc, min_martensite, depth_mm):
     from .case import parse_requirement
 

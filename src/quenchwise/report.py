@@ -78,6 +78,10 @@ def key_numbers(result) -> dict:
 
 
 def _sketch(ax, result, units=None) -> None:
+    if getattr(result, "finite", False):   # a finite part in (r, z): its hardness map (part_maps)
+        from .part_maps import sheet_map
+
+        return sheet_map(ax, result, units)
     s = result.history.section
     dims = result.case.dimensions_mm
     ax.set_aspect("equal")

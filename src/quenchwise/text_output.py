@@ -54,8 +54,9 @@ def run_summary_text(summary: dict, files: list, units: Units | None = None) -> 
     steel = s["steel"]
     T = u.fmt_temperature
     chem = chemistry_text(steel["composition_wt_pct"])
-    dims = ", ".join(f"{k.replace('_mm', '')} {u.fmt_length(v, 3 if u.us else 1)}" if k.endswith("_mm") else f"{k} {v}"
-                     for k, v in s["part"].items() if k != "shape")
+    dims = ", ".join((f"{k.replace('_mm', '')} " + " / ".join(u.fmt_length(x, 3 if u.us else 1) for x in v)
+                      if isinstance(v, list) else f"{k.replace('_mm', '')} {u.fmt_length(v, 3 if u.us else 1)}")
+                     if k.endswith("_mm") else f"{k} {v}" for k, v in s["part"].items() if k != "shape")
     lines = [
         f"quenchwise {__version__}  |  {s['title'] or 'untitled case'}",
         f"steel   {steel['grade'] or 'custom'} ({chem} wt%), grain size {steel['grain_size']:g}, "
@@ -89,6 +90,8 @@ def run_summary_text(summary: dict, files: list, units: Units | None = None) -> 
             f"{p['location']} " + (f"{p['hrc_tempered']:.1f} HRC" if p.get("hrc_tempered") is not None
                                    else f"{fmt(p.get('hrb_tempered'))} HRB") + f" ({fmt(p.get('hv_tempered'), '{:.0f}')} HV)"
             for p in s["points"]) + f"  ({t['method']})")
+    if "softest" in s:
+        lines.extend(softest_lines(s, u))
     if "di" in s:
         lines.append(f"DI      {s['di']['a255']['in']:.2f} in ({s['di']['a255']['mm']:.0f} mm) from composition, "
                      "ASTM A255; the simulated DI: quenchwise jominy")
@@ -102,6 +105,31 @@ def run_summary_text(summary: dict, files: list, units: Units | None = None) -> 
     lines.append("")
     lines.append(CAUTION)
     return "\n".join(lines)
+
+
+def softest_lines(s: dict, u: Units) -> list[str]:
+    """A finite part's profile line and its softest surface and section points (r, z, faces)."""
+    line = s.get("profile_line", {})
+    out = [f"        readings above along the {line.get('what', 'profile line')} (z = {u.fmt_length(line.get('z_mm', 0.0), 1)})"]
+    if s["quench"].get("lower_end"):
+        out.append(f"ends    lower end face (z = 0): {s['quench']['lower_end']}; upper: {s['quench']['upper_end']}")
+    for key, label in (("surface", "softest surface"), ("section", "softest section")):
+        p = s["softest"].get(key)
+        if p is None:
+            continue
+        hard = f"{p['hrc']:.1f} HRC" if p.get("hrc") is not None else f"{p['hv']:.0f} HV"
+        faces = f", {p['faces'].replace('_', ' ')} face" if p.get("faces") else ""
+        out.append(f"{label:<16}{hard} ({p['hv']:.0f} HV, martensite {p['martensite_pct']:.1f} %) at r "
+                   f"{u.fmt_length(p['r_mm'])}, z {u.fmt_length(p['z_mm'])} from the lower end{faces}")
+    w = s.get("requirement_whole_part")
+    if w:
+        p = w["worst"]
+        hard = f"{p['hrc']:.1f} HRC" if p.get("hrc") is not None else f"{p['hv']:.0f} HV"
+        verdict = ("met on every cell within that depth of a cooled face" if w["met"] else
+                   f"NOT met on every cell: {w['share_met_pct']:.1f} % of the volume within that depth meets it")
+        out.append(f"whole part '{w['requirement']}': {verdict}; weakest {hard} at r {u.fmt_length(p['r_mm'])}, "
+                   f"z {u.fmt_length(p['z_mm'])}, {u.fmt_length(p['depth_mm'])} below the nearest cooled face")
+    return out
 
 
 def compare_text(title: str, rows: list[dict], requirement: str | None, files: list, best: str | None,
@@ -152,9 +180,22 @@ def size_text(title: str, d: dict, medium_name: str, files: list, units: Units |
               + (f"({L(big['next_larger_failing_mm'])} does not meet it)" if big["next_larger_failing_mm"] else "(largest tried)")
               if big["largest_passing_mm"] is not None else f"no {big['dimension'].replace('_mm', '')} tried meets it in {medium_name}")
              + f"; this part: {L(big['case_size_mm'])}",
+             *length_lines(d, medium_name, L),
              SEVERITY_NOTE,
              "wrote   " + ", ".join(str(f) for f in files)]
     return "\n".join(lines)
+
+
+def length_lines(d: dict, medium_name: str, L) -> list[str]:
+    """A finite part's largest length in the size answer (none for a 1-D section)."""
+    g = d.get("largest_length")
+    if g is None:
+        return []
+    if g["largest_passing_mm"] is None:
+        return [f"no length tried meets it in {medium_name}; this part: {L(g['case_length_mm'])}"]
+    tail = (f"({L(g['next_longer_failing_mm'])} does not meet it)" if g["next_longer_failing_mm"] is not None
+            else "(longest tried: any length meets it)")
+    return [f"largest length in {medium_name}: {L(g['largest_passing_mm'])} {tail}; this part: {L(g['case_length_mm'])}"]
 
 
 def wrote(files: list) -> str:

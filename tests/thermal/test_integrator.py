@@ -58,7 +58,7 @@ def test_banded_rescaling_reproduces_fipy_assembly_on_sections(with_kinetics):
 def test_banded_rescaling_reproduces_fipy_assembly_on_the_rz_specimen():
     bars = [EndQuenchBar("A", 850.0, end_quench_jet(), still_air(), end_c=650.0),
             EndQuenchBar("B", 900.0, end_quench_jet(), still_air(), end_c=650.0)]
-    settings = EndQuenchSettings(radial_cells=4, axial_cells=20)
+    settings = EndQuenchSettings(radial_cells=3, axial_cells=12)
     banded = EndQuenchSolver(bars, settings).run()
     reference = EndQuenchSolver(bars, settings, assembly="fipy").run()
     for a, b in zip(banded, reference):

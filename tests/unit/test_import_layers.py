@@ -22,12 +22,12 @@ FLOORS = {
     # 1: steel chemistry and critical temperatures
     "steel": 1,
     # 2: the science layers and their data holders
-    "thermal": 2, "kinetics": 2, "hardness": 2, "case": 2, "results": 2, "sanity": 2, "quick": 2,
+    "thermal": 2, "kinetics": 2, "hardness": 2, "case": 2, "part_case": 2, "results": 2, "results_rz": 2, "sanity": 2, "quick": 2,
     "measured": 2,
     # 3: the questions asked of the science
     "workflows": 3,
     # 4: presentation: figures, sheet, text, publishing of the output folder
-    "plots": 4, "steel_figures": 4, "quenchant_figures": 4, "tank_figures": 4, "report": 4, "text_output": 4, "publish": 4,
+    "plots": 4, "steel_figures": 4, "quenchant_figures": 4, "tank_figures": 4, "part_maps": 4, "report": 4, "text_output": 4, "publish": 4,
     "figure_files": 4,
     # 5: entry points (the package's public API facade included)
     "cli": 5, "cli_support": 5, "__main__": 5, "__init__": 5, "api": 5,

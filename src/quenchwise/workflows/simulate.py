@@ -26,10 +26,32 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None,
     if model is not None:
         cases = [replace(c, model=model) for c in cases]
     cases, fits = _fit_measured(cases)
-    results = simulate_batch(cases, progress)
+    results = _simulate_split(cases, progress)
     for i, fit in fits.items():
         results[i].extra["measured_jominy"] = fit.summary()
         results[i].extra.setdefault("warnings", []).extend(fit.warnings)
+    return results
+
+
+def _simulate_split(cases: list[Case], progress) -> list[Result]:
+    """1-D sections through the batch solver, finite parts (r, z) through workflows.finite."""
+    from .finite import is_finite
+
+    finite = [i for i, c in enumerate(cases) if is_finite(c)]
+    if not finite:
+        return simulate_batch(cases, progress)
+    from .finite import simulate_finite
+
+    flat = [i for i in range(len(cases)) if i not in set(finite)]
+    results: list = [None] * len(cases)
+    share = len(flat) / len(cases)
+    if flat:
+        part = None if progress is None else (lambda f: progress(share * f))
+        for i, r in zip(flat, simulate_batch([cases[i] for i in flat], part)):
+            results[i] = r
+    part = None if progress is None else (lambda f: progress(share + (1.0 - share) * f))
+    for i, r in zip(finite, simulate_finite([cases[i] for i in finite], part)):
+        results[i] = r
     return results
 
 

@@ -26,7 +26,7 @@ from ..thermal.quenchants import Quenchant, builtin_names, htc_from_grossmann, l
 from .compare import comparison_from_results
 from .requirement import requirement_margin
 from .simulate import simulate
-from .variants import case_size_mm, size_label, with_quenchant, with_size
+from .variants import case_size_mm, size_label, with_length, with_quenchant, with_size
 
 SEVERITY_RANGE_PER_INCH = (0.02, 20.0)
 COARSE_POINTS = 14
@@ -147,6 +147,19 @@ def largest_size(case: Case, requirement: Requirement, progress=None) -> Bracket
     return _answer(_size_sweep(case, requirement), requirement, progress)
 
 
+def _length_sweep(case: Case) -> _Sweep:
+    grid = np.geomspace(1000.0 * case.finite.part.outer_m, 40000.0 * case.finite.part.outer_m, COARSE_POINTS)
+    return _Sweep(grid, lambda x: with_length(case, x), False)
+
+
+def largest_length(case: Case, requirement: Requirement, progress=None) -> Bracket:
+    """(c') A finite part: the largest length (its section kept; a stepped shaft's steps scaled
+    alike) that meets the requirement along its profile line, from 0.5 to 20 diameters. The ends
+    harden the middle of a short part, so lengths below the answer meet it; passing at the longest
+    length means any does. The parts share one radial grid, so each sweep is one stacked batch."""
+    return _answer(_length_sweep(case), requirement, progress)
+
+
 @dataclass
 class SizingAnswer:
     case: Case
@@ -156,6 +169,7 @@ class SizingAnswer:
     size: Bracket
     size_label: str
     case_size_mm: float
+    length: Bracket | None = None     # a finite part: its largest length (workflows.finite.largest_length)
 
     def as_dict(self) -> dict:
         sev = self.severity
@@ -169,6 +183,9 @@ class SizingAnswer:
             "quenchants": self.quenchants,
             "largest_size": {"dimension": self.size_label, "largest_passing_mm": rounded(self.size.passing, 2),
                              "next_larger_failing_mm": rounded(self.size.failing, 2), "case_size_mm": rounded(self.case_size_mm, 2)},
+            **({} if self.length is None else {"largest_length": {
+                "largest_passing_mm": rounded(self.length.passing, 2), "next_longer_failing_mm": rounded(self.length.failing, 2),
+                "case_length_mm": rounded(1000.0 * self.case.finite.part.length_m, 2)}}),
         }
 
 
@@ -176,29 +193,39 @@ def size(case: Case, requirement: Requirement | None = None, media: list[Quencha
          progress: Callable[[float], None] | None = None) -> SizingAnswer:
     """All three sizing answers for a case and a requirement (the case's own if none is given).
 
-    Two batches in all: the coarse severity and size sweeps and every quenchant together, then
-    both refinements together (a batch costs about as much as its slowest case, not the sum).
-    Each case is solved exactly as it would be alone, so the answers are those of three separate
-    searches."""
+    Two batches in all: the coarse severity and size sweeps (and a finite part's length sweep) with
+    every quenchant, then the refinements (a batch costs about as much as its slowest case, not
+    the sum). Each case is solved exactly as it would be alone, so the answers are those of the
+    separate searches."""
     req = requirement or case.requirement
     if req is None:
         raise InputError("requirement", "(missing)", "a [requirement] table in the case or --min-hrc / --min-martensite")
     media = media if media is not None else [load_quenchant(n) for n in builtin_names()]
     severity, sizes = _severity_sweep(case), _size_sweep(case, req)
+    lengths = _length_sweep(case) if getattr(case, "finite", None) is not None else None
+    sweeps = [severity, sizes] + ([lengths] if lengths is not None else [])
     with_req = replace(case, requirement=req)
-    first = severity.coarse_cases() + [with_quenchant(with_req, m) for m in media] + sizes.coarse_cases()
+    coarse = [sw.coarse_cases() for sw in sweeps]
+    first = coarse[0] + [with_quenchant(with_req, m) for m in media] + [c for cs in coarse[1:] for c in cs]
     # Progress: the first batch is the larger and slower one.
     results = simulate(first, None if progress is None else (lambda f: progress(0.8 * f)))
-    a, b = len(severity.values), len(severity.values) + len(media)
+    a, b = len(coarse[0]), len(coarse[0]) + len(media)
     margins = [requirement_margin(r, req) for r in results]
     rows = sorted(comparison_from_results(with_req, media, results[a:b]).rows,
                   key=lambda r: (r["equivalent_h"] is None, r["equivalent_h"] or 0.0))
-    fine_severity = severity.fine_cases(margins[:a])
-    fine_size = sizes.fine_cases(margins[b:])
-    fine = _margins(fine_severity + fine_size, req,
-                    None if progress is None else (lambda f: progress(0.8 + 0.2 * f))) if fine_severity or fine_size else []
+    per_sweep, at = [margins[:a]], b
+    for cs in coarse[1:]:
+        per_sweep.append(margins[at:at + len(cs)])
+        at += len(cs)
+    fine_cases = [sw.fine_cases(m) for sw, m in zip(sweeps, per_sweep)]
+    todo = [c for cs in fine_cases for c in cs]
+    fine = _margins(todo, req, None if progress is None else (lambda f: progress(0.8 + 0.2 * f))) if todo else []
     if progress is not None:
         progress(1.0)
-    k = len(fine_severity)
-    return SizingAnswer(case, req, severity.bracket(fine[:k]), rows, sizes.bracket(fine[k:]), size_label(case),
-                        case_size_mm(case))
+    brackets, at = [], 0
+    for sw, cs in zip(sweeps, fine_cases):
+        brackets.append(sw.bracket(fine[at:at + len(cs)]))
+        at += len(cs)
+    return SizingAnswer(case, req, brackets[0], rows, brackets[1], size_label(case), case_size_mm(case),
+                        brackets[2] if lengths is not None else None)
+

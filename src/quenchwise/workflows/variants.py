@@ -28,6 +28,8 @@ def with_quenchant(case: Case, quenchant: Quenchant) -> Case:
 
 def size_label(case: Case) -> str:
     """What 'size' means for this shape: the dimension a sizing search varies."""
+    if getattr(case, "finite", None) is not None and case.finite.part.kind == "stepped_shaft":
+        return "largest_step_diameter_mm"
     return {"plate": "thickness_mm", "bar": "diameter_mm", "sphere": "diameter_mm", "tube": "wall_mm"}[case.section.shape]
 
 
@@ -54,4 +56,37 @@ def with_size(case: Case, size_mm: float) -> Case:
     else:
         section = Section("tube", s.inner_m, s.inner_m + size_m, inner_quenched=s.inner_quenched)
         dims["outer_diameter_mm"] = round(2000.0 * (s.inner_m + size_m), 6)
+    if getattr(case, "finite", None) is not None:     # a finite part: the same length, the new section
+        return _finite_variant(replace(case, section=section, dimensions_mm=dims), size_mm=size_mm)
     return replace(case, section=section, dimensions_mm=dims)
+
+
+def with_length(case: Case, length_mm: float) -> Case:
+    """A finite bar or ring at another length (its section kept); a stepped shaft's steps all
+    scaled in length."""
+    return _finite_variant(case, length_mm=length_mm)
+
+
+def _finite_variant(case: Case, size_mm: float | None = None, length_mm: float | None = None) -> Case:
+    """The finite part of a case rebuilt after with_size (diameter of a bar, wall of a ring, the
+    largest diameter of a stepped shaft with every step scaled alike) or at another length."""
+    from ..thermal.part_shape import FinitePart
+
+    part, dims = case.finite.part, dict(case.dimensions_mm)
+    radii, lengths = part.radii_m, part.lengths_m
+    if length_mm is not None:
+        lengths = tuple(x * length_mm / 1000.0 / part.length_m for x in lengths)
+        dims["length_mm"] = length_mm
+    if size_mm is not None:
+        if part.kind == "ring":
+            radii = (case.section.outer_m,)
+        else:
+            radii = tuple(r * case.section.outer_m / part.outer_m for r in radii)
+    if part.kind == "stepped_shaft":
+        dims.pop("diameter_mm", None)
+        dims["step_diameters_mm"] = [round(2000.0 * r, 6) for r in radii]
+        dims["step_lengths_mm"] = [round(1000.0 * x, 6) for x in lengths]
+    fillet = min(part.fillet_m, *[abs(a - b) for a, b in zip(radii[:-1], radii[1:]) if a != b], *lengths) \
+        if part.fillet_m > 0 else 0.0
+    new = FinitePart(part.kind, tuple(radii), tuple(lengths), part.bore_m, fillet)
+    return replace(case, dimensions_mm=dims, finite=replace(case.finite, part=new))
