@@ -10,7 +10,7 @@ from quenchwise.steel import austenitize
 from quenchwise.steel.composition import Composition
 from quenchwise.thermal import Quenchant, Section, load_quenchant
 from quenchwise.thermal.endquench import EndQuenchBar, EndQuenchSettings, EndQuenchSolver, end_quench_jet, still_air
-from quenchwise.thermal.integrator import unit_face_conductances
+from quenchwise.thermal.banded import unit_face_conductances
 from quenchwise.thermal.solver import BatchSolver, SolverError, SolverSettings, ThermalCase
 
 

@@ -55,9 +55,9 @@ from typing import Callable, Sequence
 import fipy as fp
 import numpy as np
 from fipy.solvers.scipy import LinearLUSolver
-from scipy.linalg import solveh_banded
 
 from ..errors import SolverError
+from .banded import BandedDiffusion, unit_face_conductances
 from .properties import ConstantOverrides, PropertyTables, group_weights
 from .stepping import close_step, step_factor
 from .surfaces import Surfaces
@@ -65,6 +65,8 @@ from .surfaces import Surfaces
 #: Numerical guards checked at every step.
 GUARD_TOLERANCE_K = 2.0
 FRACTION_TOLERANCE = 1e-9
+#: Temperature step [K] of the one-sided difference for the slope of the surface heat flow.
+SURFACE_SLOPE_STEP_K = 1.0
 ASSEMBLIES = ("banded", "fipy")
 
 
@@ -135,50 +137,6 @@ class Integration:
     extra: dict = field(default_factory=dict)
 
 
-def unit_face_conductances(mesh, face_ids: np.ndarray, face_cells: np.ndarray) -> np.ndarray:
-    """FiPy's geometric factor of each listed face (area over centre distance, A_f / d_f), read from
-    the matrix FiPy assembles for a DiffusionTerm with coefficient 1 on those faces and 0 elsewhere.
-
-    >>> import fipy as fp
-    >>> mesh = fp.Grid1D(dx=[1.0, 3.0])
-    >>> unit_face_conductances(mesh, np.array([1]), np.array([[0, 1]])).tolist()
-    [0.5]
-    """
-    values = np.zeros(mesh.numberOfFaces)
-    values[face_ids] = 1.0
-    coeff = fp.FaceVariable(mesh=mesh, value=values)
-    probe = fp.CellVariable(mesh=mesh, value=0.0)
-    term = fp.DiffusionTerm(coeff=coeff)
-    term.cacheMatrix()
-    term.justResidualVector(var=probe, dt=1.0)
-    matrix = term.matrix.matrix.tocsr()
-    unit = np.asarray(matrix[face_cells[:, 0], face_cells[:, 1]]).ravel()
-    if unit.size and not np.all(unit > 0):
-        raise ValueError("a listed face does not connect its two cells in FiPy's mesh")
-    return unit
-
-
-class _BandedDiffusion:
-    """The symmetric banded matrix diag(d) - sum_f c_f u_f (e_a - e_b)(e_a - e_b)^T of one step,
-    in LAPACK's upper banded storage, and its solve."""
-
-    def __init__(self, n: int, face_cells: np.ndarray, unit: np.ndarray):
-        a, b = np.minimum(face_cells[:, 0], face_cells[:, 1]), np.maximum(face_cells[:, 0], face_cells[:, 1])
-        self.n, self.a, self.b, self.unit = n, a, b, unit
-        offset = b - a
-        self.bandwidth = int(offset.max()) if offset.size else 0
-        self.row = self.bandwidth - offset
-
-    def solve(self, diagonal: np.ndarray, conductance: np.ndarray, rhs: np.ndarray) -> np.ndarray:
-        cu = conductance * self.unit
-        if self.bandwidth == 0:
-            return rhs / diagonal
-        ab = np.zeros((self.bandwidth + 1, self.n))
-        ab[self.bandwidth] = diagonal + np.bincount(self.a, cu, self.n) + np.bincount(self.b, cu, self.n)
-        ab[self.row, self.b] = -cu
-        return solveh_banded(ab, rhs, check_finite=False, overwrite_ab=True, overwrite_b=False)
-
-
 class Integrator:
     """Integrate a Geometry's bodies from their start temperatures until each is below its end
     temperature (module docstring: method, energy balance, step control, guard, assembly)."""
@@ -206,7 +164,7 @@ class Integrator:
         self.bath_of_cell = bath[self.member]
         self.tables = PropertyTables()
         if assembly == "banded":
-            self.banded = _BandedDiffusion(self.n, g.face_cells, unit_face_conductances(g.mesh, g.face_ids, g.face_cells))
+            self.banded = BandedDiffusion(self.n, g.face_cells, unit_face_conductances(g.mesh, g.face_ids, g.face_cells))
         else:
             self.T = fp.CellVariable(mesh=g.mesh, value=np.array(g.initial_c, dtype=float), hasOld=True)
             self.transient = fp.CellVariable(mesh=g.mesh, value=1.0)
@@ -229,6 +187,26 @@ class Integrator:
         h_eff = 1.0 / (1.0 / np.maximum(h, 1e-12) + 1.0 / g)
         t_surf = (g * t_cell + h * bath) / (g + h)
         return sf.area[rows] * h_eff, t_surf
+
+    def surface_sinks(self, temperature, k, rows):
+        """The surface heat flow of the listed rows linearized about `temperature` (the temperatures
+        extrapolated to the end of the step), as G (T_cell - T_ref): q(T) ~ q* + D (T - T*) with
+        D = max(dq/dT, q*/(T* - T_bath)) >= the secant g_eff. Where h rises steeply with the surface
+        temperature (the nucleate-boiling flank of a boiling curve) the rise of the flux is then
+        implicit; taking h at T* alone left it explicit, and the end-quench face oscillated by
+        about 10 K a step on the jet's flank, holding the step down. For a constant h, G = g_eff and
+        T_ref = T_bath exactly. T_ref lies between T_bath and T*, so the implicit sink never
+        drives a cell past the bath."""
+        sf = self.geometry.surfaces
+        g_eff, _ = self.surface_coefficients(temperature, k, rows)
+        t_cell, bath = temperature[sf.cell[rows]], sf.bath[rows]
+        hotter = temperature.copy()
+        hotter[sf.cell[rows]] += SURFACE_SLOPE_STEP_K
+        g_up, _ = self.surface_coefficients(hotter, k, rows)
+        q_now = g_eff * (t_cell - bath)
+        slope = (g_up * (t_cell + SURFACE_SLOPE_STEP_K - bath) - q_now) / SURFACE_SLOPE_STEP_K
+        sink = np.maximum(slope, g_eff)
+        return sink, t_cell - q_now / sink
 
     def face_conductances(self, k, active):
         """Harmonic-mean conductivity of each face times its weight; 0 on faces of frozen bodies."""
@@ -348,16 +326,16 @@ class Integrator:
                              np.where(self.solid, rho_c, 1.0))
             old_eff = np.where(active_cell, temperature + b * e_prev / (a0 * cp_step), temperature)
             rows = sf.rows[active[sf.member]]
-            g_rows, _ = self.surface_coefficients(extrapolated, k, rows)
+            g_rows, t_ref = self.surface_sinks(extrapolated, k, rows)
             cells = sf.cell[rows]
             sink_g = np.bincount(cells, g_rows, minlength=n)
-            sink_gb = np.bincount(cells, g_rows * sf.bath[rows], minlength=n)
+            sink_gb = np.bincount(cells, g_rows * t_ref, minlength=n)
             solved = self._solve(coeff, old_eff, sink_g, sink_gb, self.face_conductances(k, active), temperature)
             solved = np.where(active_cell, solved, temperature)
 
             # Heat through each surface row, BDF2-integrated (module docstring).
             m_rows = sf.member[rows]
-            flux = g_rows * (solved[cells] - sf.bath[rows])
+            flux = g_rows * (solved[cells] - t_ref)
             q = (dt_m[m_rows] * flux + b_m[m_rows] * q_prev[rows]) / a0_m[m_rows]
             q_prev[rows] = q
             heat_row[rows] += q
