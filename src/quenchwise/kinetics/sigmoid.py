@@ -58,7 +58,7 @@ def progress_integral(x, p: float = 0.4, beta: float = 0.0):
     True
     """
     xs, ss = _table(float(p), _beta_key(beta))
-    return np.interp(np.clip(x, 0.0, 1.0), xs, ss)
+    return np.interp(np.minimum(np.maximum(x, 0.0), 1.0), xs, ss)
 
 
 def fraction_from_progress(s, p: float = 0.4, beta=0.0):

@@ -135,9 +135,9 @@ class SteelNodes:
         t = np.asarray(temperature_c, dtype=float)
         bulk_hypo = np.minimum(self.bulk_carbon, EUTECTOID_C_WT)
         x_a3 = a3_line_carbon(np.maximum(t, self.ae1), self.ae1, self.ae3_bulk, bulk_hypo)
-        ferrite_total = np.clip((x_a3 - self.bulk_carbon) / np.maximum(x_a3 - FERRITE_C_WT, 1e-9), 0.0, 1.0)
+        ferrite_total = np.minimum(np.maximum((x_a3 - self.bulk_carbon) / np.maximum(x_a3 - FERRITE_C_WT, 1e-9), 0.0), 1.0)
         x_acm = np.maximum(carbon_on_acm(np.maximum(t, self.ae1)), EUTECTOID_C_WT)
-        cementite_total = np.clip((self.bulk_carbon - x_acm) / (CEMENTITE_C_WT - x_acm), 0.0, 1.0)
+        cementite_total = np.minimum(np.maximum((self.bulk_carbon - x_acm) / (CEMENTITE_C_WT - x_acm), 0.0), 1.0)
         return np.where(self.hyper, np.maximum(cementite_total - self.cementite0, 0.0),
                         np.maximum(ferrite_total - self.ferrite0, 0.0))
 
@@ -216,7 +216,7 @@ class PhaseStepper:
             formed = formed_f + formed_c
             left = np.maximum(nodes.austenite0 - formed, 1e-9)
             carbon = (nodes.austenite0 * nodes.carbon0 - formed_f * FERRITE_C_WT - formed_c * CEMENTITE_C_WT) / left
-            self.carbon = np.where(grow, np.clip(carbon, 0.0, 2.1), self.carbon)
+            self.carbon = np.where(grow, np.minimum(np.maximum(carbon, 0.0), 2.1), self.carbon)
 
         # Pearlite, then bainite: start when the incubation sum reaches X = 0.01.
         x_p = self.model.fraction("pearlite", self.progress["pearlite"], self.factors)
@@ -259,7 +259,7 @@ class PhaseStepper:
     def _update_austenite(self) -> None:
         f = self.f
         solid = f["ferrite"] + f["cementite"] + f["pearlite"] + f["bainite"] + f["martensite"]
-        f["austenite"] = np.clip(1.0 - solid, 0.0, 1.0)
+        f["austenite"] = np.minimum(np.maximum(1.0 - solid, 0.0), 1.0)
 
     def _record_rate(self, t_old, t_new, dt) -> None:
         """The cooling rate at 700 C: each step's secant rate belongs to its mid temperature, and

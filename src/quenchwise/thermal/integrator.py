@@ -177,10 +177,13 @@ class Integrator:
     def surface_coefficients(self, temperature, k, rows):
         """Effective coefficient times area (the film in series with the half cell) and the surface
         temperature estimate of the listed surface rows."""
+        cell = self.geometry.surfaces.cell[rows]
+        return self._film(temperature[cell], k[cell], rows)
+
+    def _film(self, t_cell, k_cell, rows):
         sf = self.geometry.surfaces
-        cell, bath = sf.cell[rows], sf.bath[rows]
-        g = k[cell] / sf.half_m[rows]
-        t_cell = temperature[cell]
+        bath = sf.bath[rows]
+        g = k_cell / sf.half_m[rows]
         h = sf.htc(t_cell, rows)
         t_surf = (g * t_cell + h * bath) / (g + h)
         h = sf.htc(t_surf, rows)                     # one fixed-point pass on the surface temperature
@@ -198,11 +201,13 @@ class Integrator:
         T_ref = T_bath exactly. T_ref lies between T_bath and T*, so the implicit sink never
         drives a cell past the bath."""
         sf = self.geometry.surfaces
-        g_eff, _ = self.surface_coefficients(temperature, k, rows)
-        t_cell, bath = temperature[sf.cell[rows]], sf.bath[rows]
-        hotter = temperature.copy()
-        hotter[sf.cell[rows]] += SURFACE_SLOPE_STEP_K
-        g_up, _ = self.surface_coefficients(hotter, k, rows)
+        cell = sf.cell[rows]
+        t_cell, k_cell, n = temperature[cell], k[cell], rows.size
+        # Both temperatures in one evaluation (the table lookups cost per call, not per row).
+        g_both, _ = self._film(np.concatenate([t_cell, t_cell + SURFACE_SLOPE_STEP_K]),
+                               np.concatenate([k_cell, k_cell]), np.concatenate([rows, rows]))
+        g_eff, g_up = g_both[:n], g_both[n:]
+        bath = sf.bath[rows]
         q_now = g_eff * (t_cell - bath)
         slope = (g_up * (t_cell + SURFACE_SLOPE_STEP_K - bath) - q_now) / SURFACE_SLOPE_STEP_K
         sink = np.maximum(slope, g_eff)

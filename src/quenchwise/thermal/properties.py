@@ -152,8 +152,9 @@ class MixedProperties:
     def _locate(self, temperature_c):
         t = np.asarray(temperature_c, dtype=float)
         lo, hi = self.grid[0], self.grid[-1]
-        tc = np.clip(t, lo, hi)
-        j = np.clip(np.searchsorted(self.grid, tc, side="right") - 1, 0, self.grid.size - 2)
+        # np.minimum/np.maximum: np.clip's Python wrapper costs more than the work on these small arrays.
+        tc = np.minimum(np.maximum(t, lo), hi)
+        j = np.minimum(np.maximum(np.searchsorted(self.grid, tc, side="right") - 1, 0), self.grid.size - 2)
         return t, tc - self.grid[j], self.row + j, self.row_slope + j
 
     def _cp_h(self, t, u, at, at_slope):

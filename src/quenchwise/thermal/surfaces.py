@@ -46,11 +46,11 @@ class Surfaces:
         between table points, constant beyond the ends, plus linearized radiation)."""
         tt, th = self.table_t[rows], self.table_h[rows]
         x = surface_c[:, None]
-        j = np.clip((tt <= x).sum(axis=1), 1, tt.shape[1] - 1)
+        j = np.minimum(np.maximum((tt <= x).sum(axis=1), 1), tt.shape[1] - 1)
         r = np.arange(rows.size)
         x0, x1, y0, y1 = tt[r, j - 1], tt[r, j], th[r, j - 1], th[r, j]
         span = x1 - x0
-        frac = np.clip((surface_c - x0) / np.where(span > 0, span, 1.0), 0.0, 1.0)
+        frac = np.minimum(np.maximum((surface_c - x0) / np.where(span > 0, span, 1.0), 0.0), 1.0)
         frac = np.where(span > 0, frac, 1.0)
         h = y0 + frac * (y1 - y0)
         eps = self.emissivity[rows]

@@ -34,10 +34,9 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None,
 
 
 def _simulate_split(cases: list[Case], progress) -> list[Result]:
-    """1-D sections through the batch solver, finite parts (r, z) through workflows.finite."""
-    from .finite import is_finite
-
-    finite = [i for i, c in enumerate(cases) if is_finite(c)]
+    """1-D sections through the batch solver, finite parts (r, z) through workflows.finite (loaded
+    only when a finite part is there: the 1-D path need not import the (r, z) modules)."""
+    finite = [i for i, c in enumerate(cases) if getattr(c, "finite", None) is not None]
     if not finite:
         return simulate_batch(cases, progress)
     from .finite import simulate_finite
