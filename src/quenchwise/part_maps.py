@@ -209,7 +209,13 @@ def sheet_map(ax, result, units=None) -> None:
     ax.set_ylim(0.0, k * part.outer_m * 1000.0)
     ax.set_aspect("equal", adjustable="box")
     ax.tick_params(labelsize=6)
-    bar = ax.inset_axes([0.0, -0.42, 0.6, 0.06])
+    # The colour bar below the tick labels, placed in inches: the map is drawn to scale, so its
+    # height (and with it any offset in axes units) depends on the part's proportions.
+    fig, pos = ax.figure, ax.get_position()
+    width_in = pos.width * fig.get_figwidth()
+    height_in = min(pos.height * fig.get_figheight(), width_in * part.outer_m / part.length_m)
+    drop_in, thick_in = 0.27, 0.07
+    bar = ax.inset_axes([0.0, -(drop_in + thick_in) / height_in, 0.6, thick_in / height_in])
     ax.figure.colorbar(mesh, cax=bar, orientation="horizontal")
     bar.tick_params(labelsize=5.5)
     dims = result.case.dimensions_mm
