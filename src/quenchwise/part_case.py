@@ -9,7 +9,7 @@ from __future__ import annotations
 import math
 from pathlib import Path
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 
 from .errors import InputError
 from .thermal.geometry import Section

@@ -241,7 +241,7 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
         ("Austenitize", f"{T(case.austenitize_c)}   (Ae1 {T(st.ae1)}, {'Acm' if st.hypereutectoid else 'Ae3'} "
                         f"{T(st.upper_critical)}; austenite {st.carbon:.2f} %C)"),
         ("Quench", f"{case.outer.name} at {T(case.outer.bath_c)}" + _severity_text(result)
-                   + ((f"; bore the same" if case.inner.name == case.outer.name else f"; bore {case.inner.name}")
+                   + (("; bore the same" if case.inner.name == case.outer.name else f"; bore {case.inner.name}")
                       if case.inner else "")),
         ("Quench ends", f"hottest point below {T(case.end_c)} after {result.history.time_s[-1]:.0f} s"),
         ("Temper", "none (as quenched)" if case.temper is None

@@ -253,6 +253,38 @@ H5_UNITS = {"time": "s", "node": "1", "time_s": "s", "position_mm": "mm", "depth
             "jominy_distance_mm": "mm", **{name: "1" for name in FRACTIONS + ("cementite",)}}
 
 
+def write_fields_h5(path: Path, case, time_s, temperature_c, node_ids, by_node: dict, units: dict,
+                    long_names: dict, attrs: dict | None = None) -> None:
+    """One self-describing result.h5 (atomically): `time_s`, `temperature_c` (n_t x n_nodes) and the
+    per-node datasets of by_node, each with a `units` attribute and a `long_name`, the dimension
+    scales `time` [s] and `node` (node_ids) attached to their axes, and the case text, its SHA-256,
+    the program, version and creation time (plus attrs) as file attributes."""
+
+    def write(p: Path) -> None:
+        with h5py.File(p, "w") as f:
+            time = f.create_dataset("time", data=time_s)
+            node = f.create_dataset("node", data=np.asarray(node_ids, dtype=np.int32))
+            time.make_scale("time")
+            node.make_scale("node")
+            f.create_dataset("time_s", data=time_s).dims[0].attach_scale(time)
+            temperature = f.create_dataset("temperature_c", data=temperature_c, compression="gzip")
+            temperature.dims[0].attach_scale(time)
+            temperature.dims[1].attach_scale(node)
+            for name, values in by_node.items():
+                f.create_dataset(name, data=np.asarray(values)).dims[0].attach_scale(node)
+            for name, ds in f.items():
+                ds.attrs["units"] = units[name]
+                ds.attrs["long_name"] = long_names.get(name, name.replace("_", " "))
+            f.attrs["case"] = case.source_text
+            f.attrs["case_sha256"] = case.source_sha256
+            f.attrs["program"] = "quenchwise"
+            f.attrs["version"] = __version__
+            for key, value in (attrs or {}).items():
+                f.attrs[key] = value
+            f.attrs["created_utc"] = datetime.now(timezone.utc).isoformat(timespec="seconds")
+    _atomic_write(Path(path), write)
+
+
 def write_result_h5(result: Result, path: Path) -> None:
     """result.h5 with the datasets of the contract; case text and program version as attributes.
 
@@ -262,37 +294,15 @@ def write_result_h5(result: Result, path: Path) -> None:
     Nodes are stored from the centre line / inner end outward (position_mm rising; DESIGN.md's
     contract), the reverse of the Result's surface-first arrays."""
     order = np.argsort(result.position_mm, kind="stable")
-
-    def write(p: Path) -> None:
-        with h5py.File(p, "w") as f:
-            n_t, n_x = result.history.temperature_c.shape
-            time = f.create_dataset("time", data=result.history.time_s)
-            node = f.create_dataset("node", data=np.arange(n_x, dtype=np.int32))
-            time.make_scale("time")
-            node.make_scale("node")
-            f.create_dataset("time_s", data=result.history.time_s).dims[0].attach_scale(time)
-            by_node = {"position_mm": result.position_mm, "depth_mm": result.depth_mm}
-            by_node.update({name: result.fractions[name] for name in result.fraction_names})
-            by_node.update(hv=result.hv, hrc=result.hrc)
-            if result.hv_tempered is not None:
-                by_node.update(hv_tempered=result.hv_tempered, hrc_tempered=result.hrc_tempered)
-            by_node.update(cooling_rate_700_c_s=result.cooling_rate_700_c_s,
-                           jominy_distance_mm=result.jominy_distance_mm)
-            temperature = f.create_dataset("temperature_c", data=result.history.temperature_c[:, order],
-                                           compression="gzip")
-            temperature.dims[0].attach_scale(time)
-            temperature.dims[1].attach_scale(node)
-            for name, values in by_node.items():
-                f.create_dataset(name, data=np.asarray(values)[order]).dims[0].attach_scale(node)
-            for name, ds in f.items():
-                ds.attrs["units"] = H5_UNITS[name]
-                ds.attrs["long_name"] = H5_LONG_NAMES.get(name, name.replace("_", " "))
-            f.attrs["case"] = result.case.source_text
-            f.attrs["case_sha256"] = result.case.source_sha256
-            f.attrs["program"] = "quenchwise"
-            f.attrs["version"] = __version__
-            f.attrs["created_utc"] = datetime.now(timezone.utc).isoformat(timespec="seconds")
-    _atomic_write(Path(path), write)
+    by_node = {"position_mm": result.position_mm, "depth_mm": result.depth_mm}
+    by_node.update({name: result.fractions[name] for name in result.fraction_names})
+    by_node.update(hv=result.hv, hrc=result.hrc)
+    if result.hv_tempered is not None:
+        by_node.update(hv_tempered=result.hv_tempered, hrc_tempered=result.hrc_tempered)
+    by_node.update(cooling_rate_700_c_s=result.cooling_rate_700_c_s, jominy_distance_mm=result.jominy_distance_mm)
+    temperature = result.history.temperature_c
+    write_fields_h5(path, result.case, result.history.time_s, temperature[:, order], np.arange(temperature.shape[1]),
+                    {name: np.asarray(values)[order] for name, values in by_node.items()}, H5_UNITS, H5_LONG_NAMES)
 
 
 H5_LONG_NAMES = {"time": "time from the start of the quench", "node": "mesh node index",

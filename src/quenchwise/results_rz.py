@@ -12,16 +12,13 @@ from __future__ import annotations
 import csv
 import io
 from dataclasses import dataclass
-from datetime import datetime, timezone
 from pathlib import Path
 
-import h5py
 import numpy as np
 
 from .formatting import csv_cell, rounded
 from .hardness.jominy_equivalent import equivalent_jominy_distance_mm
-from .results import H5_LONG_NAMES, H5_UNITS, Result, _atomic_write, _CSV_FORMATS
-from .version import __version__
+from .results import H5_LONG_NAMES, H5_UNITS, Result, _CSV_FORMATS, write_fields_h5
 
 
 @dataclass
@@ -176,29 +173,9 @@ def write_part_h5(result: PartResult, path: Path) -> None:
     f = result.field
     cells = np.flatnonzero(f.solid)
 
-    def write(p: Path) -> None:
-        with h5py.File(p, "w") as h5:
-            time = h5.create_dataset("time", data=f.time_s)
-            node = h5.create_dataset("node", data=cells.astype(np.int32))
-            time.make_scale("time")
-            node.make_scale("node")
-            h5.create_dataset("time_s", data=f.time_s).dims[0].attach_scale(time)
-            temperature = h5.create_dataset("temperature_c", data=f.temperature_c[:, cells], compression="gzip")
-            temperature.dims[0].attach_scale(time)
-            temperature.dims[1].attach_scale(node)
-            for name, values in _by_node(result, cells).items():
-                h5.create_dataset(name, data=values).dims[0].attach_scale(node)
-            for name, ds in h5.items():
-                ds.attrs["units"] = H5_UNITS_RZ[name]
-                ds.attrs["long_name"] = H5_LONG_NAMES_RZ.get(name, name.replace("_", " "))
-            h5.attrs["case"] = result.case.source_text
-            h5.attrs["case_sha256"] = result.case.source_sha256
-            h5.attrs["program"] = "quenchwise"
-            h5.attrs["version"] = __version__
-            h5.attrs["geometry"] = "axisymmetric (r, z) half-section, finite part"
-            h5.attrs["profile_z_mm"] = f.part.profile_z_m * 1000.0
-            h5.attrs["created_utc"] = datetime.now(timezone.utc).isoformat(timespec="seconds")
-    _atomic_write(Path(path), write)
+    write_fields_h5(path, result.case, f.time_s, f.temperature_c[:, cells], cells, _by_node(result, cells),
+                    H5_UNITS_RZ, H5_LONG_NAMES_RZ,
+                    {"geometry": "axisymmetric (r, z) half-section, finite part", "profile_z_mm": f.part.profile_z_m * 1000.0})
 
 
 def axial_lines(result: PartResult) -> list[tuple[str, np.ndarray]]:

@@ -10,9 +10,11 @@ thinner step's side. The fillet is approximated on the grid (see FinitePart.is_s
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
+
+from .settings import StepControl
 
 #: Kinds of finite part: a bar with ends, a ring (tube with ends), a stepped shaft.
 KINDS = ("bar", "ring", "stepped_shaft")
@@ -112,7 +114,7 @@ class FinitePart:
 
 
 @dataclass(frozen=True)
-class PartSettings:
+class PartSettings(StepControl):
     """Numerics of a finite part: cells across the largest radius (or the wall of a ring) and along
     the length, geometric growth of cell size away from each cooled face, and the step limits
     (the same meaning as SolverSettings').
@@ -128,22 +130,12 @@ class PartSettings:
     radial_cells: int = 24
     axial_cells: int = 48
     growth: float = 1.12
-    max_temperature_step_k: float = 12.0
-    max_fraction_step: float = 0.05
-    max_relative_step: float = 0.15
-    first_step_s: float = 0.001
-    max_step_growth: float = 1.5
-    max_steps: int = 50000
-    max_time_s: float = 1.0e6
 
     def refined(self, times: int = 1) -> "PartSettings":
         """Cells doubled, growth rooted and the step limits halved `times` times."""
         f = 2 ** times
-        return PartSettings(radial_cells=self.radial_cells * f, axial_cells=self.axial_cells * f,
-                            growth=self.growth ** (1.0 / f), max_temperature_step_k=self.max_temperature_step_k / f,
-                            max_fraction_step=self.max_fraction_step / f, max_relative_step=self.max_relative_step / f,
-                            first_step_s=self.first_step_s / f, max_step_growth=self.max_step_growth,
-                            max_steps=self.max_steps * f, max_time_s=self.max_time_s)
+        return replace(self, radial_cells=self.radial_cells * f, axial_cells=self.axial_cells * f,
+                       growth=self.growth ** (1.0 / f), **self.refined_steps(times))
 
 
 def first_width(length_m: float, cells: int, growth: float, both: bool) -> float:

@@ -6,7 +6,7 @@ no matplotlib), so the settings live here and not beside the solver.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 
 #: Largest ratio of the widest to the narrowest cell of a section. [mesh] growth is a rate per cell,
@@ -45,6 +45,14 @@ class StepControl:
     max_steps: int = 50000
     max_time_s: float = 1.0e6
 
+    def refined_steps(self, times: int = 1) -> dict:
+        """The step limits halved `times` times (and the step budget doubled as often), as keyword
+        arguments for dataclasses.replace; the subclasses refine their meshes beside them."""
+        f = 2 ** times
+        return dict(max_temperature_step_k=self.max_temperature_step_k / f, max_fraction_step=self.max_fraction_step / f,
+                    max_relative_step=self.max_relative_step / f, first_step_s=self.first_step_s / f,
+                    max_steps=self.max_steps * f)
+
 
 @dataclass(frozen=True)
 class SolverSettings(StepControl):
@@ -60,9 +68,4 @@ class SolverSettings(StepControl):
     def refined(self, times: int = 1) -> "SolverSettings":
         """The same numerics with the cells doubled and the step limits halved `times` times."""
         f = 2 ** times
-        return SolverSettings(cells=self.cells * f, growth=self.growth ** (1.0 / f),
-                              max_temperature_step_k=self.max_temperature_step_k / f,
-                              max_fraction_step=self.max_fraction_step / f,
-                              max_relative_step=self.max_relative_step / f, first_step_s=self.first_step_s / f,
-                              max_step_growth=self.max_step_growth, max_steps=self.max_steps * f,
-                              max_time_s=self.max_time_s)
+        return replace(self, cells=self.cells * f, growth=self.growth ** (1.0 / f), **self.refined_steps(times))

@@ -24,6 +24,16 @@ from ..thermal.solver import BatchSolver, ThermalCase
 ROOM_C = 20.0
 
 
+def steel_stepper(cases, states, members, counts, initial_c, model, martensite):
+    """The kinetics of a batch's members (PhaseStepper over all their nodes: each member's austenite
+    state, grain size and node count), or None for model "none" (pure conduction)."""
+    if model == "none":
+        return None
+    nodes = SteelNodes.from_states([states[i] for i in members], [cases[i].grain_size for i in members],
+                                   list(counts), martensite_law=martensite)
+    return PhaseStepper(nodes, kinetics_model(model), initial_c)
+
+
 def _thermal_case(i: int, case: Case) -> ThermalCase:
     return ThermalCase(
         name=case.title or f"case {i}", section=case.section, outer=case.outer, inner=case.inner,
@@ -44,11 +54,7 @@ def simulate(cases: list[Case], progress: Callable[[float], None] | None = None)
     done_weight = 0.0
     for (settings, model, martensite), members in groups.items():
         solver = BatchSolver([_thermal_case(i, cases[i]) for i in members], settings)
-        stepper = None
-        if model != "none":
-            nodes = SteelNodes.from_states([states[i] for i in members], [cases[i].grain_size for i in members],
-                                           list(solver.counts), martensite_law=martensite)
-            stepper = PhaseStepper(nodes, kinetics_model(model), solver.initial)
+        stepper = steel_stepper(cases, states, members, solver.counts, solver.initial, model, martensite)
         share = len(members) / len(cases)
         report = None
         if progress is not None:

@@ -15,14 +15,13 @@ import numpy as np
 
 from ..hardness import hardness_hv, hrc_from_hv
 from ..hardness.tempering import tempered_hardness_hv
-from ..kinetics import PhaseStepper, SteelNodes, kinetics_model
 from ..results import surface_first
 from ..results_rz import PartField, PartResult
 from ..steel import austenitize
 from ..thermal.integrator import rate_through
 from ..thermal.part_rz import PartMember, build_geometry, integrate, radial_faces
 from ..thermal.solver import CaseHistory
-from .batch import ROOM_C, _add_hardness_extras
+from .batch import ROOM_C, _add_hardness_extras, steel_stepper
 
 
 #: Largest number of cells solved as one batch (a band of 200 heats of a 50 x 100 mm bar would keep
@@ -81,11 +80,7 @@ def simulate_finite(cases: list, progress: Callable[[float], None] | None = None
     done = 0.0
     for (settings, model, martensite, _, _), members in groups.items():
         geometry = build_geometry([part_member(i, cases[i]) for i in members], settings)
-        stepper = None
-        if model != "none":
-            nodes = SteelNodes.from_states([states[i] for i in members], [cases[i].grain_size for i in members],
-                                           list(geometry.member_counts), martensite_law=martensite)
-            stepper = PhaseStepper(nodes, kinetics_model(model), geometry.initial_c)
+        stepper = steel_stepper(cases, states, members, geometry.member_counts, geometry.initial_c, model, martensite)
         share = len(members) / len(cases)
         report = None if progress is None else (lambda f, base=done, share=share: progress(base + share * f))
         run = integrate(geometry, settings, stepper, report)

@@ -34,7 +34,7 @@ from ..case import Case, load_case
 from ..errors import InputError
 from ..hardness import hardness_hv, hrb_from_hv, hrc_from_hv
 from ..hardness.hardenability import IdealDiameter, a255_ideal_diameter
-from ..kinetics import MODELS, PhaseStepper, SteelNodes
+from ..kinetics import MODELS
 from ..measured import numeric_rows
 from ..steel import AusteniteState, austenitize
 from ..thermal.endquench import (
@@ -46,6 +46,7 @@ from ..thermal.endquench import (
     end_quench_jet,
     still_air,
 )
+from .batch import steel_stepper
 from .ideal_diameter import physics_ideal_diameters
 
 #: Reading positions: every 1/16 in from 1/16 to 32/16 in (ASTM A255 reads at 1/16 in steps to
@@ -187,9 +188,8 @@ def jominy(cases: list[Case], settings: EndQuenchSettings = DEFAULT_SETTINGS, ph
         bars = [EndQuenchBar(cases[i].title or f"steel {i}", cases[i].austenitize_c, jet, air, end_c=END_C)
                 for i in members]
         solver = EndQuenchSolver(bars, settings)
-        nodes = SteelNodes.from_states([states[i] for i in members], [cases[i].grain_size for i in members],
-                                       [solver.cells_per_bar] * len(members), martensite_law=martensite)
-        stepper = PhaseStepper(nodes, MODELS[model](), solver.initial)
+        stepper = steel_stepper(cases, states, members, [solver.cells_per_bar] * len(members), solver.initial, model,
+                                martensite)
         part = share * len(members) / len(cases)
         report = None
         if progress is not None:
