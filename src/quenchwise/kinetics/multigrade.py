@@ -45,6 +45,9 @@ TERMS = (("1", None, 0.0), ("c", "c", 0.4), ("mn", "mn", 0.8), ("cr", "cr", 0.5)
 COEFFICIENT_FILE = "multigrade_coefficients.toml"
 #: Distance beyond the fitted range over which the correction fades to none [wt%].
 TAPER_WT = {"c": 0.2, "mn": 0.5, "cr": 0.5, "ni": 1.0, "mo": 0.2}
+#: Reference temperature and clip range of the bainite temperature term [C].
+T_REF = 450.0
+BAINITE_T_RANGE = (300.0, 600.0)
 
 
 @lru_cache(maxsize=1)
@@ -106,6 +109,21 @@ def correction_multipliers(chem: dict, theta: dict, fit_range: dict) -> dict:
     return {p: np.exp(w * np.tensordot(np.asarray(theta[p], dtype=float), x, axes=1)) for p in PRODUCTS}
 
 
+def bainite_temperature_multiplier(temperature_c, slope):
+    """Temperature term of the bainite correction: exp(slope (T' - T_REF) / 100), T' = T clipped to
+    BAINITE_T_RANGE [C]; slope [1 per 100 K] as fitted (coefficient file, [temperature] bainite).
+
+    slope < 0 makes bainite faster in its upper range (near Bs) and slower in its lower range, at
+    a fixed K at T_REF = 450 C; outside 300-600 C the term holds its end value. An empirical term
+    of this calibration, not a published law (module docstring).
+
+    >>> [round(float(m), 3) for m in bainite_temperature_multiplier([250.0, 450.0, 550.0], -0.5)]
+    [2.117, 1.0, 0.607]
+    """
+    t = np.clip(np.asarray(temperature_c, dtype=float), *BAINITE_T_RANGE)
+    return np.exp(np.asarray(slope, dtype=float) * (t - T_REF) / 100.0)
+
+
 @dataclass(frozen=True)
 class Li1998Multigrade(Li1998):
     """Li et al. (1998) with the fitted multi-grade correction of this module on every K.
@@ -117,15 +135,26 @@ class Li1998Multigrade(Li1998):
     name: str = "li1998-multigrade"
     theta: tuple | None = None          # ((product, (6 floats)), ...) to stay hashable
     fit_range: tuple | None = None      # ((element, (lo, hi)), ...)
+    bainite_slope: float | None = None  # temperature term of bainite [1 per 100 K] (None: the file's)
 
-    def _theta(self) -> tuple[dict, dict]:
-        if self.theta is None or self.fit_range is None:
+    def _theta(self) -> tuple[dict, dict, float]:
+        if self.theta is None or self.fit_range is None or self.bainite_slope is None:
             data = load_coefficients()
         theta = dict(self.theta) if self.theta is not None else data["theta"]
         rng = dict(self.fit_range) if self.fit_range is not None else data["fit_range"]
-        return theta, rng
+        slope = (self.bainite_slope if self.bainite_slope is not None
+                 else float(data.get("temperature", {}).get("bainite", 0.0)))
+        return theta, rng, slope
 
     def factors(self, chem: dict) -> dict:
-        theta, rng = self._theta()
+        theta, rng, slope = self._theta()
         m = correction_multipliers(chem, theta, rng)
-        return {k: v * m[k] for k, v in super().factors(chem).items()}
+        out = {k: v * m[k] for k, v in super().factors(chem).items()}
+        # The temperature term fades with the composition correction outside the fitted range.
+        out["bainite_slope"] = slope * range_weight(chem, rng) + 0.0 * out["bainite"]
+        return out
+
+    def time_constants(self, factors: dict, grain_size, temperature_c, undercooling: dict) -> dict:
+        k = super().time_constants(factors, grain_size, temperature_c, undercooling)
+        k["bainite"] = k["bainite"] * bainite_temperature_multiplier(temperature_c, factors["bainite_slope"])
+        return k
