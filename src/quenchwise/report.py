@@ -121,7 +121,8 @@ KINETICS_TEXT = {
     "li1998-a255": "Li et al. (1998), carbon-dependent multiplier fitted to ASTM A255 end-quench data "
                    "(kinetics/calibrated.py), with Scheil additivity",
     "li1998-multigrade": "Li et al. (1998) with composition-dependent correction factors per product fitted on "
-                         "16 SAE J1268 H-bands (kinetics/multigrade.py), with Scheil additivity",
+                         "16 SAE J1268 H-bands and handbook as-quenched bars (kinetics/multigrade.py), with "
+                         "Scheil additivity",
     "kirkaldy1983": "Kirkaldy & Venugopalan (1983) with Scheil additivity",
     "none": "none (heat conduction only)",
 }

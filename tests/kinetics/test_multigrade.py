@@ -41,3 +41,22 @@ def test_trial_coefficients_do_not_touch_the_registry():
     ratio = trial.factors(_chem())["ferrite"][0] / Li1998().factors(_chem())["ferrite"][0]
     assert abs(float(ratio) - np.exp(0.5)) < 1e-12
     assert MODELS == before
+
+
+def test_bainite_temperature_term_also_fades_outside_the_fitted_range():
+    # The temperature term of the bainite correction (fitted with the handbook bars) is part of the
+    # correction: a 1.0 %C bearing chemistry gets the published bainite time constants at every
+    # temperature, and inside the range the term is exactly exp(slope (T - 450) / 100).
+    from quenchwise.kinetics.multigrade import bainite_temperature_multiplier
+    temps = np.array([350.0, 450.0, 550.0])
+    under = {"ferrite": 700.0 - temps, "cementite": -np.ones(3), "pearlite": 720.0 - temps, "bainite": 600.0 - temps}
+    far = _chem(c=1.0, mn=0.35, cr=1.45, mo=0.0)
+    trial = Li1998Multigrade(theta=tuple((p, (0.0,) * 6) for p in PRODUCTS), fit_range=(("c", (0.2, 0.6)),),
+                             bainite_slope=-0.4)
+    published = Li1998().time_constants(Li1998().factors(far), 7.0, temps, under)["bainite"]
+    assert np.allclose(trial.time_constants(trial.factors(far), 7.0, temps, under)["bainite"], published, rtol=1e-12)
+    near = _chem()
+    ratio = (trial.time_constants(trial.factors(near), 7.0, temps, under)["bainite"]
+             / Li1998().time_constants(Li1998().factors(near), 7.0, temps, under)["bainite"])
+    assert np.allclose(ratio, bainite_temperature_multiplier(temps, -0.4), rtol=1e-12)
+    assert np.allclose(ratio, np.exp(-0.4 * np.array([-1.0, 0.0, 1.0])), rtol=1e-12)
