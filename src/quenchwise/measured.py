@@ -30,6 +30,16 @@ SCATTER_HRC = 2.0
 SIXTEENTH_MM = 25.4 / 16.0
 
 
+def csv_rows(path: str | Path, key: str) -> list[list[str]]:
+    """The rows of a small CSV file (UTF-8, a byte-order mark allowed), blank and "#" lines left out;
+    an unreadable file is an InputError naming the key and the file."""
+    try:
+        text = Path(path).read_text("utf-8-sig")
+    except (OSError, UnicodeDecodeError) as exc:
+        raise InputError(key, str(path), f"a readable UTF-8 CSV file ({type(exc).__name__})") from None
+    return list(csv.reader(ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")))
+
+
 def numeric_rows(rows, key: str, path, allowed: str, scale_mm: float):
     """The data rows of a distance-and-two-readings CSV (measured curves, end-quench bands):
     (row, distance [mm], second, third), empty cells as None; one line, exit 2, for a row that is
@@ -90,12 +100,7 @@ def read_measured(path: str | Path, key: str, columns: tuple[str, ...], max_mm: 
     """Read a measured curve (module docstring); errors name the key, the file and what is allowed."""
     allowed = (f"a CSV with a header row {' or '.join(columns)}, hrc (optional hrb column for readings below "
                f"HRC 20) and at least {MIN_READINGS} readings")
-    try:
-        text = Path(path).read_text("utf-8-sig")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(key, str(path), f"a readable UTF-8 CSV file ({type(exc).__name__})") from None
-    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    rows = list(csv.reader(lines))
+    rows = csv_rows(path, key)
     if not rows:
         raise InputError(key, str(path), allowed)
     header = [h.strip().lower() for h in rows[0]]

@@ -4,7 +4,6 @@ curve run forward with the curve, its maximum rate and where, the rate at 300 C,
 from __future__ import annotations
 
 import numpy as np
-from scipy.linalg import solve_banded
 
 from .quenchants import Quenchant
 from .probe_model import ProbeModel
@@ -35,17 +34,8 @@ def probe_cooling(quenchant: Quenchant, initial_c: float = 850.0, stop_c: float 
     for end, dt in segments:
         first = True
         while t < end - 1e-9 and centre[-1] > stop:
-            lead, c_now, c_old = (1.0, 1.0, 0.0) if first else (1.5, 2.0, 0.5)
-            k_last = float(model.conductivity(field_now[-1]))
-            half = k_last / (0.5 * model.dx)
-            h = float(quenchant.htc(surface))
-            g = model.radius / (1.0 / max(h, 1e-12) + 1.0 / half)
-            ab, cap, _ = model._banded(field_now, lead, dt, g)
-            rhs = cap * (c_now * field_now - c_old * field_old)
-            rhs[-1] += g * bath
-            new = solve_banded((1, 1), ab, rhs)
+            new, surface = model.film_step(field_now, field_old, surface, quenchant.htc, bath, dt, first)
             field_old, field_now = field_now, new
-            surface = (half * new[-1] + h * bath) / (half + h)
             t += dt
             times.append(t)
             centre.append(float(model.centre(new)))
@@ -66,7 +56,6 @@ def cooling_curve_figures(time_s, centre_c) -> dict:
     """
     t = np.asarray(time_s, dtype=float)
     y = np.asarray(centre_c, dtype=float)
-    tm = 0.5 * (t[1:] + t[:-1])
     ym = 0.5 * (y[1:] + y[:-1])
     rate = -np.diff(y) / np.diff(t)
     # Smooth over 0.1 s (on the fine part of the run) so that one step's noise is not the maximum.

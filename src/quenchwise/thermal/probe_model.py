@@ -76,6 +76,21 @@ class ProbeModel:
         ab[1, -1] += surface_g
         return ab, cap, k
 
+    def film_step(self, field_now, field_old, surface_c: float, htc: Callable, bath_c: float, dt: float,
+                  first: bool):
+        """One forward step with the surface film h(T_surface) in series with the half cell (h at the
+        last step's surface temperature): BDF2, implicit Euler when `first`. Returns the new field and
+        the new surface temperature."""
+        lead, c_now, c_old = (1.0, 1.0, 0.0) if first else (1.5, 2.0, 0.5)
+        half = float(self.conductivity(field_now[-1])) / (0.5 * self.dx)
+        h = float(htc(surface_c))
+        g = self.radius / (1.0 / max(h, 1e-12) + 1.0 / half)
+        ab, cap, _ = self._banded(field_now, lead, dt, g)
+        rhs = cap * (c_now * field_now - c_old * field_old)
+        rhs[-1] += g * bath_c
+        new = solve_banded((1, 1), ab, rhs)
+        return new, (half * new[-1] + h * bath_c) / (half + h)
+
     def surface_temperature(self, field_c, flux_w_m2, k_last):
         """Surface temperature from the last cell and the flux into the body (half-cell gradient)."""
         return field_c[..., -1] + flux_w_m2 * 0.5 * self.dx / k_last
@@ -90,19 +105,10 @@ class ProbeModel:
         centre = [self.centre(field_now)]
         surface = [float(initial_c)]
         for step in range(n_steps):
-            lead, c_now, c_old = (1.0, 1.0, 0.0) if step == 0 else (1.5, 2.0, 0.5)
-            k_last = float(self.conductivity(field_now[-1]))
-            half = k_last / (0.5 * self.dx)
-            ts = surface[-1]
-            h = float(htc(ts))
-            g = self.radius / (1.0 / max(h, 1e-12) + 1.0 / half)
-            ab, cap, _ = self._banded(field_now, lead, dt, g)
-            rhs = cap * (c_now * field_now - c_old * field_old)
-            rhs[-1] += g * bath_c
-            new = solve_banded((1, 1), ab, rhs)
+            new, ts = self.film_step(field_now, field_old, surface[-1], htc, bath_c, dt, step == 0)
             field_old, field_now = field_now, new
             centre.append(self.centre(new))
-            surface.append((half * new[-1] + h * bath_c) / (half + h))
+            surface.append(ts)
         centre, surface = np.array(centre), np.array(surface)
         return np.interp(times_s, t_grid, centre), np.interp(times_s, t_grid, surface)
 

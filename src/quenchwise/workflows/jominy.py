@@ -35,7 +35,7 @@ from ..errors import InputError
 from ..hardness import hardness_hv, hrb_from_hv, hrc_from_hv
 from ..hardness.hardenability import IdealDiameter, a255_ideal_diameter
 from ..kinetics import MODELS
-from ..measured import numeric_rows
+from ..measured import csv_rows, numeric_rows
 from ..steel import AusteniteState, austenitize
 from ..thermal.endquench import (
     SIXTEENTH_M,
@@ -245,12 +245,7 @@ def read_band(path: str | Path) -> list[BandRow]:
     key = "--band"
     allowed = ("a CSV with a header row distance_mm (or distance_sixteenths), min_hrc, max_hrc and at least "
                "one row; bounds may be empty")
-    try:
-        text = Path(path).read_text("utf-8")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(key, str(path), f"a readable UTF-8 CSV file ({type(exc).__name__})") from None
-    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
-    rows = list(csv.reader(lines))
+    rows = csv_rows(path, key)
     if len(rows) < 2:
         raise InputError(key, str(path), allowed)
     header = [h.strip().lower() for h in rows[0]]
