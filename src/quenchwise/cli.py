@@ -21,6 +21,7 @@ from .cli_support import (_activity, _check_out_dir, _emit, _guard, _page, _publ
                           _write_csv, _figures, _figures_option, _json_option, _overwrite_option, _units_choice,
                           interrupted)
 from .errors import InputError
+from .side_by_side import run_side_by_side
 from .version import __version__
 
 # rich_markup_mode=None: help texts are plain text, so "[requirement]" or "[C]" is printed, not eaten as markup.
@@ -62,12 +63,14 @@ def run(
         case, _ = _refined(_run_case(case_file, quick, out, overwrite), fine)
         result = _quench(case, json_out, f"solving the quench of {case_file or 'the quick case'}")
 
-        def write(staging):
+        def data_files(staging):
             write_result_h5(result, staging / "result.h5")
             text = profile_csv_text(result)
             (staging / "profile.csv").write_text(us_csv_text(text) if u.us else text, "utf-8")
-            hardness_figure(result, staging, u)
-            cooling_figure(result, staging, u)
+
+        def write(staging):   # one figure drawn in a second process meanwhile (side_by_side.py)
+            run_side_by_side([lambda: hardness_figure(result, staging, u), lambda: cooling_figure(result, staging, u),
+                              lambda: data_files(staging)])
 
         files = _publish(out, _run_files(result, write, u)) if out is not None else []
         summary = result.summary()
@@ -113,7 +116,7 @@ def compare(
     """The same part in several quenchants, solved as one batch."""
     with _guard(), _figures(figures):
         from .case import load_case
-        from .plots import compare_figures
+        from .plots import compare_cooling_figure, compare_hardness_figure
         from .text_output import compare_text
         from .thermal.quenchants import load_quenchant
         from .workflows.compare import compare as compare_media
@@ -129,8 +132,9 @@ def compare(
         if case.requirement is None:  # nothing to meet: the table and JSON say n/a (empty) instead of false
             for r in result.rows:
                 r["meets_requirement"] = None
-        files = _publish(out, lambda staging: (_write_csv(staging / "compare.csv", result.rows, u),
-                                               compare_figures(result, staging, u)))
+        files = _publish(out, lambda staging: run_side_by_side([
+            lambda: compare_hardness_figure(result, staging, u), lambda: compare_cooling_figure(result, staging, u),
+            lambda: _write_csv(staging / "compare.csv", result.rows, u)]))
         best = result.best()
         best = best["medium"] if best else None
         text = compare_text(case.title, result.rows, case.requirement.describe(u) if case.requirement else None, files,

@@ -300,14 +300,22 @@ def cooling_figure(result, out_dir: Path, units=None) -> list[Path]:
     return _save(fig, out_dir, "cooling")
 
 
+#: One colour per quenchant in the comparison figures.
+_COMPARE_PALETTE = ("#1d3557", "#c77d1a", "#a4343a", "#2a9d8f", "#6d597a", "#8a817c", "#e9c46a", "#264653")
+
+
 def compare_figures(comparison, out_dir: Path, units=None) -> list[Path]:
     """Overlay of hardness profiles and of centre cooling curves, one line per quenchant; the
     legends sit outside the plotting area, the requirement stops at its depth."""
+    return compare_hardness_figure(comparison, out_dir, units) + compare_cooling_figure(comparison, out_dir, units)
+
+
+def compare_hardness_figure(comparison, out_dir: Path, units=None) -> list[Path]:
+    """The hardness profiles of the comparison, one line per quenchant, with the requirement."""
     from .workflows.requirement import final_hv
 
     u = _units(units)
-    palette = ("#1d3557", "#c77d1a", "#a4343a", "#2a9d8f", "#6d597a", "#8a817c", "#e9c46a", "#264653")
-    paths = []
+    palette = _COMPARE_PALETTE
     hvs = [final_hv(r) for r in comparison.results]
     scale = hardness_scale(*hvs)
     total = comparison.case.section.thickness_m * 1000.0
@@ -330,7 +338,13 @@ def compare_figures(comparison, out_dir: Path, units=None) -> list[Path]:
     ax.legend(frameon=False, fontsize=7.5, loc="upper left", bbox_to_anchor=(1.13, 1.0))
     ax.set_title(f"{comparison.case.title or 'case'}: hardness by quenchant", fontsize=10, loc="left")
     _footer(fig, SHORT_CAUTION)
-    paths += _save(fig, out_dir, "compare_hardness")
+    return _save(fig, out_dir, "compare_hardness")
+
+
+def compare_cooling_figure(comparison, out_dir: Path, units=None) -> list[Path]:
+    """The centre cooling curves of the comparison, one line per quenchant."""
+    u = _units(units)
+    palette = _COMPARE_PALETTE
     fig, ax = plt.subplots(figsize=(8.6, 4.6))
     fig.subplots_adjust(bottom=0.2, right=0.66, left=0.09)
     for i, (m, r) in enumerate(zip(comparison.media, comparison.results)):
@@ -345,8 +359,7 @@ def compare_figures(comparison, out_dir: Path, units=None) -> list[Path]:
     ax.legend(frameon=False, fontsize=7.5, loc="upper left", bbox_to_anchor=(1.02, 1.0))
     ax.set_title(f"{comparison.case.title or 'case'}: centre cooling by quenchant", fontsize=10, loc="left")
     _footer(fig, SHORT_CAUTION)
-    paths += _save(fig, out_dir, "compare_cooling")
-    return paths
+    return _save(fig, out_dir, "compare_cooling")
 
 
 def band_figure(band, out_dir: Path, units=None) -> list[Path]:

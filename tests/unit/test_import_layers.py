@@ -28,7 +28,7 @@ FLOORS = {
     "workflows": 3,
     # 4: presentation: figures, sheet, text, publishing of the output folder
     "plots": 4, "steel_figures": 4, "quenchant_figures": 4, "tank_figures": 4, "part_maps": 4, "report": 4, "text_output": 4, "publish": 4,
-    "figure_files": 4,
+    "figure_files": 4, "side_by_side": 4,
     # 5: entry points (the package's public API facade included)
     "cli": 5, "cli_support": 5, "__main__": 5, "__init__": 5, "api": 5,
 }
