@@ -358,14 +358,17 @@ def write_sheet(result, out_dir: Path, stem: str = "sheet", page: str = "a4", un
     foot.text(0.0, 0.2, f"Case file {case.source_name or '-'}\nSHA-256 {case.source_sha256}", fontsize=6,
               va="bottom", family="monospace")
 
-    out_dir = Path(out_dir)
-    paths = []
-    for ext in ("pdf", "png"):
-        p = out_dir / f"{stem}.{ext}"
+    from .side_by_side import run_side_by_side
+
+    paths = [Path(out_dir) / f"{stem}.{ext}" for ext in ("pdf", "png")]
+
+    def save(p: Path) -> None:
         tmp = p.with_name(f".{p.name}.part")
-        fig.savefig(tmp, format=ext, dpi=110, metadata={"Creator": f"quenchwise {__version__}"} if ext == "pdf" else None)
+        pdf = p.suffix == ".pdf"
+        fig.savefig(tmp, format=p.suffix[1:], dpi=110, metadata={"Creator": f"quenchwise {__version__}"} if pdf else None)
         tmp.replace(p)
-        paths.append(p)
+
+    run_side_by_side([lambda: save(paths[1]), lambda: save(paths[0])])   # the PNG drawn in a second process
     plt.close(fig)
     return paths
 
