@@ -136,3 +136,18 @@ def test_case_with_a_grade_takes_its_chemistry_grain_size_and_austenitizing(tmp_
     assert case.grade == "52100" and case.composition.cr == 1.5 and case.composition.c == g.nominal["c"]
     assert case.grain_size == g.grain_size and case.austenitize_c == g.austenitize_c
     assert case.model == "kirkaldy1983"
+
+
+def test_vanadium_carbide_holds_most_of_6150s_vanadium_at_its_hardening_temperature():
+    # A low-carbon microalloyed steel (0.2C-0.1V) has all its vanadium in solution at about 900 C,
+    # while in a 0.5 %C steel vanadium carbide survives the usual hardening temperatures (Gladman,
+    # The Physical Metallurgy of Microalloyed Steels, 1997; memory).
+    micro = austenitize(Composition(c=0.20, mn=1.2, si=0.3, v=0.10), 920.0)
+    assert micro.austenite_composition.v == pytest.approx(0.10)
+    assert not micro.warnings()
+    s = austenitize(Composition(**find_grade("6150").nominal), 870.0)
+    aus = s.austenite_composition
+    assert aus.v < 0.5 * s.composition.v                   # most of the 0.20 % V stays as carbide
+    assert aus.c < s.composition.c                          # with the carbon it binds
+    assert s.composition.v == 0.20                          # the bulk chemistry stays as entered
+    assert any("undissolved carbide" in w for w in s.warnings())

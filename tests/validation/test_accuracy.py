@@ -49,7 +49,7 @@ def test_position_of_50_percent_martensite_follows_the_band_middle(subset):
 
 
 @pytest.mark.xfail(strict=True, reason="the bar-constrained calibration moved 4140H's 50 % martensite hardness from "
-                   "J13.5 (-33 %) to J11.8 (-41 %) against the band middle's J20; same tolerance as above, not loosened")
+                   "J13.5 (-33 %) to J11.8-11.9 (-41 %) against the band middle's J20; same tolerance as above, not loosened")
 def test_4140h_position_of_50_percent_martensite(subset):
     s = subset["4140H"]
     assert abs(s.j50_sim - s.j50_band) <= max(1.5, 0.4 * s.j50_band), (s.j50_sim, s.j50_band)
@@ -68,9 +68,10 @@ def test_boron_grade_is_scored_and_hardens_like_its_band(subset):
 # on the H-bands and these bars, benchmarks/calibrate_kinetics.py): 66.7 % of the readings within
 # 3 HRC (56 of 84; 47.6 % with the end-quench-only fit before), bias -1.7 / +0.1 / +2.0 HRC at
 # surface / half radius / centre (before -0.1 / +1.2 / +2.9: the surface moved away from zero, the
-# centre into the issue's +/-2.5). The issue's 70 % is not met. These bars were used in the fit
-# (their held-out score is in the coefficient file's header); the guards hold the level reached, with
-# one reading and a few tenths of HRC of slack for numerics.
+# centre into the issue's +/-2.5). With 6150's undissolved vanadium carbide (steel/austenite.py) and
+# the refit: still 56 of 84, RMS 3.7 -> 3.5 HRC, bias -1.7 / -0.2 / +1.6. The issue's 70 % is not met.
+# These bars were used in the fit (their held-out score is in the coefficient file's header); the
+# guards hold the level reached, with one reading and a few tenths of HRC of slack for numerics.
 @pytest.fixture(scope="module")
 def bars():
     from quenchwise.case import DEFAULT_MODEL
@@ -80,9 +81,9 @@ def bars():
 def test_handbook_bars_hold_the_level_reached(bars):
     assert bars["readings"] == 84
     assert bars["within_3_pct"] >= 100.0 * 55 / 84, bars["within_3_pct"]
-    assert bars["rms"] <= 3.9, bars["rms"]
+    assert bars["rms"] <= 3.7, bars["rms"]
 
 
-@pytest.mark.parametrize("position, limit", [("surface", 2.0), ("half_radius", 0.4), ("centre", 2.3)])
+@pytest.mark.parametrize("position, limit", [("surface", 2.0), ("half_radius", 0.5), ("centre", 1.9)])
 def test_handbook_bar_bias_by_position(bars, position, limit):
     assert abs(bars["groups"][("position", position)]["bias"]) <= limit, bars["groups"][("position", position)]
