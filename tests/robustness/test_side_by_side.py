@@ -66,10 +66,15 @@ def test_run_writes_all_files_and_a_killed_figure_process_keeps_earlier_results(
     names = sorted(p.name for p in out.iterdir() if not p.name.startswith("."))
     assert names == ["cooling.png", "hardness.png", "profile.csv", "result.h5"]
     before = {p.name: p.read_bytes() for p in out.iterdir() if p.is_file()}
+    serial = tmp_path / "serial"
+    done = subprocess.run(args[:-1] + [str(serial)], capture_output=True, text=True, env={**env, "QUENCHWISE_SERIAL": "1"})
+    assert done.returncode == 0, done.stderr
+    for name in ("cooling.png", "hardness.png", "profile.csv"):   # same bytes side by side or not (result.h5 dates itself)
+        assert (serial / name).read_bytes() == before[name], name
 
     killed = subprocess.run(args + ["--overwrite"], capture_output=True, text=True,
                             env={**env, "QUENCHWISE_FAULT": "side process=KILL"})
     assert killed.returncode == 1
     assert killed.stderr.count("\n") == 1 and "signal 9" in killed.stderr, killed.stderr
     assert {p.name: p.read_bytes() for p in out.iterdir() if p.is_file()} == before
-    assert sorted(p.name for p in tmp_path.iterdir()) == ["res"]
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["res", "serial"]
