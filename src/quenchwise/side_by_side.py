@@ -7,9 +7,10 @@ takes the figures' 0.2 s to about 0.1 s (benchmarks/commands.py). The child writ
 staging folder the parent publishes, so the staging rule holds: nothing is published unless every
 piece succeeded.
 
-Falls back to doing the work here, one piece after another, where fork does not exist (Windows),
-where this process runs threads (fork would copy held locks), on one core, or with
-QUENCHWISE_SERIAL=1.
+Falls back to doing the work here, one piece after another, off Linux (Windows has no fork; on
+macOS a forked child must not touch the system frameworks numpy's BLAS may use, which is why
+Python's multiprocessing stopped forking there), where this process runs threads (fork would copy
+held locks), on one core, or with QUENCHWISE_SERIAL=1.
 """
 
 from __future__ import annotations
@@ -17,13 +18,14 @@ from __future__ import annotations
 import os
 import pickle
 import signal
+import sys
 import threading
 
 from .publish import fault
 
 
 def _can_fork() -> bool:
-    return (hasattr(os, "fork") and (os.cpu_count() or 1) > 1 and threading.active_count() == 1
+    return (sys.platform.startswith("linux") and (os.cpu_count() or 1) > 1 and threading.active_count() == 1
             and not os.environ.get("QUENCHWISE_SERIAL"))
 
 
