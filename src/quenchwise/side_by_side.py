@@ -71,10 +71,11 @@ def _fork(tasks):
                 task()
         except BaseException as exc:  # noqa: BLE001 - handed to the parent, which reports it
             status = 1
+            text = f"{type(exc).__name__}: {exc}"
             try:
-                payload = pickle.dumps(exc)
+                payload = pickle.dumps((pickle.dumps(exc), text))
             except Exception:  # noqa: BLE001 - an unpicklable exception still reaches the parent
-                payload = pickle.dumps(RuntimeError(f"{type(exc).__name__}: {exc}"))
+                payload = pickle.dumps((None, text))
             with os.fdopen(write_fd, "wb") as pipe:
                 pipe.write(payload)
         os._exit(status)
@@ -88,11 +89,21 @@ def _join(child) -> None:
         payload = pipe.read()      # returns when the child has closed its end (ended)
     _, status = os.waitpid(pid, 0)
     if payload:
-        raise pickle.loads(payload)
+        raise _exception(*pickle.loads(payload))
     code = os.waitstatus_to_exitcode(status)
     if code != 0:
         how = f"signal {-code}" if code < 0 else f"status {code}"
         raise RuntimeError(f"the second process drawing the figures ended by {how}")
+
+
+def _exception(pickled, text: str) -> BaseException:
+    """The child's exception as it was raised there, or a RuntimeError with its text where it does
+    not survive the trip (an exception class whose constructor needs other arguments)."""
+    try:
+        exc = pickle.loads(pickled) if pickled is not None else None
+    except Exception:  # noqa: BLE001
+        exc = None
+    return exc if isinstance(exc, BaseException) else RuntimeError(text)
 
 
 def _kill(child) -> None:

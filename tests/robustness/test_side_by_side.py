@@ -37,6 +37,20 @@ def test_a_failure_in_the_child_is_raised_here_with_its_type_and_message():
         run_side_by_side([fails, lambda: None])
 
 
+class _NeedsTwoArguments(Exception):
+    def __init__(self, what, why):
+        super().__init__(f"{what}: {why}")
+
+
+@forks
+def test_an_exception_that_cannot_be_rebuilt_arrives_as_its_text():
+    def fails():
+        raise _NeedsTwoArguments("figure", "font missing")
+
+    with pytest.raises(RuntimeError, match="_NeedsTwoArguments: figure: font missing"):
+        run_side_by_side([fails, lambda: None])
+
+
 @forks
 def test_a_failure_here_stops_and_reaps_the_child(tmp_path):
     def fails():
