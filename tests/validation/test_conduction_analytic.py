@@ -27,7 +27,6 @@ resolution); every accuracy check runs the default settings.
 from __future__ import annotations
 
 import dataclasses
-import warnings
 
 import numpy as np
 import pytest
@@ -36,13 +35,14 @@ from scipy import special
 from quenchwise.kinetics import MODELS, PhaseStepper, SteelNodes
 from quenchwise.steel import Composition, austenitize
 from quenchwise.thermal import BatchSolver, Quenchant, Section, SolverSettings, load_quenchant
-from quenchwise.thermal.properties import DENSITY_KG_M3, mixed_properties
+from quenchwise.thermal.properties import DENSITY_KG_M3
 from quenchwise.thermal.quenchants import htc_from_grossmann
 from quenchwise.thermal.solver import ThermalCase
 
 import analytic_hollow_cylinder as hollow
 from analytic_conduction import coefficients, dimensionless_temperature
 from analytic_conduction import temperature as series_temperature
+from energy_check import StepRecorder, sensible_gain
 
 # Constant properties of the analytic checks (steel-like; alpha = 5.34e-6 m2/s).
 K, RHO, CP = 25.0, 7800.0, 600.0
@@ -222,29 +222,11 @@ def _steel_run(cases, chemistries, settings=SolverSettings(), recorder=False, gr
     nodes = SteelNodes.from_states(states, [grain] * len(cases), list(solver.counts))
     stepper = PhaseStepper(nodes, MODELS["li1998"](), solver.initial)
     if recorder:
-        stepper = _Recorder(stepper)
+        stepper = StepRecorder(stepper)
     histories = solver.run(stepper)
     fractions = {k: v.copy() for k, v in stepper.fractions().items()}
     per_case = [{k: v[a:a + n] for k, v in fractions.items()} for a, n in zip(solver.starts, solver.counts)]
     return solver, stepper, histories, per_case
-
-
-class _Recorder:
-    """Passes every call to the stepper and keeps what the energy check needs: the temperatures
-    before and after each conduction solve and the phase fractions before and after each step."""
-
-    def __init__(self, inner):
-        self.inner, self.steps = inner, []
-
-    def fractions(self):
-        return self.inner.fractions()
-
-    def advance(self, t_old, t_new, dt):
-        before = {k: v.copy() for k, v in self.inner.fractions().items()}
-        out = self.inner.advance(t_old, t_new, dt)
-        after = {k: v.copy() for k, v in self.inner.fractions().items()}
-        self.steps.append((t_old.copy(), t_new.copy(), before, after))
-        return out
 
 
 def test_batch_equals_alone_with_kinetics():
@@ -337,19 +319,6 @@ def test_default_settings_converge(steel_runs):
     assert error <= 0.01, f"centre history differs by {100 * error:.2f} % of (initial - bath)"
 
 
-def _sensible_path_integral(t0, t1, fractions, points=9):
-    """Integral of cp(T, phases) dT from t0 to t1 per node [J/kg], composite Simpson on
-    thermal.properties.mixed_properties (numpy.interp of the tables, not the solver's code)."""
-    s = np.linspace(0.0, 1.0, points)
-    w = np.ones(points)
-    w[1:-1:2], w[2:-1:2] = 4.0, 2.0
-    total = np.zeros_like(t0)
-    for si, wi in zip(s, w):
-        _, cp = mixed_properties(t0 + (t1 - t0) * si, fractions)
-        total += wi * cp
-    return (t1 - t0) * total / (3.0 * (points - 1))
-
-
 def test_energy_balance_with_transformations(steel_runs):
     # Issue 3: heat out through the surfaces (CaseHistory.heat_out_j) = drop of sensible enthalpy
     # + latent heat released (CaseHistory.latent_j), within 0.5 %. The sensible enthalpy is
@@ -359,10 +328,7 @@ def test_energy_balance_with_transformations(steel_runs):
     solver, recorder, histories, _ = steel_runs
     final = np.concatenate([h.temperature_c[-1] for h in histories])
     mass = DENSITY_KG_M3 * solver.weight * solver.dx
-    gained = np.zeros(solver.n_nodes)
-    for n, (t_old, t_solved, before, after) in enumerate(recorder.steps):
-        t_next = recorder.steps[n + 1][0] if n + 1 < len(recorder.steps) else final
-        gained += _sensible_path_integral(t_old, t_solved, before) + _sensible_path_integral(t_solved, t_next, after)
+    gained = sensible_gain(recorder, final)
     drop = -np.bincount(solver.case_of_node, gained * mass)
     for i, h in enumerate(histories):
         assert h.latent_j > 0.05 * h.heat_out_j            # transformations did happen

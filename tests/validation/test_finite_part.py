@@ -20,12 +20,12 @@ from scipy import special
 
 from analytic_conduction import coefficients, dimensionless_temperature
 from analytic_hollow_cylinder import theta as hollow_theta
+from energy_check import StepRecorder, sensible_gain
 from quenchwise.case import load_case
 from quenchwise.kinetics import MODELS, PhaseStepper, SteelNodes
 from quenchwise.steel import austenitize
 from quenchwise.thermal.part_rz import PartMember, build_geometry, integrate
 from quenchwise.thermal.part_shape import FinitePart, PartSettings
-from quenchwise.thermal.properties import mixed_properties
 from quenchwise.thermal.quenchants import Quenchant
 from quenchwise.workflows import simulate
 
@@ -244,35 +244,6 @@ def test_kinetics_converge_with_mesh_and_step():
         assert coarse.softest()[key]["hrc"] == pytest.approx(fine.softest()[key]["hrc"], abs=0.5)
 
 
-class _Recorder:
-    """Wraps the PhaseStepper and records each step's temperatures and fractions."""
-
-    def __init__(self, stepper):
-        self.stepper, self.steps = stepper, []
-
-    def fractions(self):
-        return self.stepper.fractions()
-
-    def advance(self, t_old, t_new, dt):
-        before = {k: v.copy() for k, v in self.stepper.fractions().items()}
-        out = self.stepper.advance(t_old, t_new, dt)
-        after = {k: v.copy() for k, v in self.stepper.fractions().items()}
-        self.steps.append((np.array(t_old), np.array(t_new), before, after))
-        return out
-
-
-def _sensible(t0, t1, fractions, points=9):
-    """Integral of cp dT per node [J/kg], Simpson on properties.mixed_properties (not the solver's
-    enthalpy tables)."""
-    s = np.linspace(0.0, 1.0, points)
-    w = np.ones(points)
-    w[1:-1:2], w[2:-1:2] = 4.0, 2.0
-    total = np.zeros_like(t0)
-    for si, wi in zip(s, w):
-        total += wi * mixed_properties(t0 + (t1 - t0) * si, fractions)[1]
-    return (t1 - t0) * total / (3.0 * (points - 1))
-
-
 def test_energy_balance_with_transformations():
     # Heat out through all faces = drop of sensible enthalpy (integrated here along each cell's
     # path, independently of the solver) + latent heat released, within 0.5 % (DESIGN.md 3).
@@ -284,13 +255,9 @@ def test_energy_balance_with_transformations():
     geometry = build_geometry([part_member(0, case)], settings)
     state = austenitize(case.composition, case.austenitize_c)
     nodes = SteelNodes.from_states([state], [case.grain_size], list(geometry.member_counts))
-    recorder = _Recorder(PhaseStepper(nodes, MODELS[case.model](), geometry.initial_c))
+    recorder = StepRecorder(PhaseStepper(nodes, MODELS[case.model](), geometry.initial_c))
     run = integrate(geometry, settings, recorder)
-    final = run.temperature_c[0][-1]
-    gained = np.zeros(final.size)
-    for n, (t_old, t_solved, before, after) in enumerate(recorder.steps):
-        t_next = recorder.steps[n + 1][0] if n + 1 < len(recorder.steps) else final
-        gained += _sensible(t_old, t_solved, before) + _sensible(t_solved, t_next, after)
+    gained = sensible_gain(recorder, run.temperature_c[0][-1])
     mass = geometry.density_kg_m3 * np.asarray(geometry.mesh.cellVolumes)
     drop = -np.sum(np.where(geometry.solid, gained * mass, 0.0))
     assert run.latent_j[0] > 0.05 * run.heat_out_j[0]
