@@ -304,14 +304,9 @@ def cooling_figure(result, out_dir: Path, units=None) -> list[Path]:
 _COMPARE_PALETTE = ("#1d3557", "#c77d1a", "#a4343a", "#2a9d8f", "#6d597a", "#8a817c", "#e9c46a", "#264653")
 
 
-def compare_figures(comparison, out_dir: Path, units=None) -> list[Path]:
-    """Overlay of hardness profiles and of centre cooling curves, one line per quenchant; the
-    legends sit outside the plotting area, the requirement stops at its depth."""
-    return compare_hardness_figure(comparison, out_dir, units) + compare_cooling_figure(comparison, out_dir, units)
-
-
 def compare_hardness_figure(comparison, out_dir: Path, units=None) -> list[Path]:
-    """The hardness profiles of the comparison, one line per quenchant, with the requirement."""
+    """The hardness profiles of the comparison, one line per quenchant; the legend sits outside the
+    plotting area, the requirement stops at its depth (compare_cooling_figure: the centres)."""
     from .workflows.requirement import final_hv
 
     u = _units(units)

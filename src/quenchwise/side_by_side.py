@@ -30,10 +30,10 @@ def _can_fork() -> bool:
 
 
 def run_side_by_side(tasks) -> None:
-    """Call every zero-argument callable of ``tasks``: the first ones in forked child processes
-    (one per core beyond the first, round robin), the rest here. Returns when all are done; an
-    exception in a child is raised here again (its type and message, pickled back through a pipe)
-    after every child has ended. If this process is interrupted, the children are killed.
+    """Call every zero-argument callable of ``tasks``: the first half in one forked child process,
+    the rest here (two cores: the work parts in two). Returns when all are done; an exception in
+    the child is raised here again (its type and message, pickled back through a pipe) after the
+    child has ended. If this process fails or is interrupted, the child is killed.
 
     >>> out = []
     >>> run_side_by_side([lambda: None, lambda: out.append("here")])
@@ -41,8 +41,7 @@ def run_side_by_side(tasks) -> None:
     ['here']
     """
     tasks = list(tasks)
-    workers = min(len(tasks), os.cpu_count() or 1, 2)
-    if workers < 2 or not _can_fork():
+    if len(tasks) < 2 or not _can_fork():
         for task in tasks:
             task()
         return
