@@ -231,8 +231,12 @@ def _steel_run(cases, chemistries, settings=SolverSettings(), recorder=False, gr
 
 def test_batch_equals_alone_with_kinetics():
     # A case's answer must not depend on what else is in its batch (DESIGN.md section 3):
-    # 1e-9 relative on times, temperatures, surface estimates, heat, latent heat and fractions.
-    # Coarse numerics: the identity holds at any resolution.
+    # 1e-7 relative on times, temperatures, surface estimates, heat, latent heat, 1e-7 on fractions.
+    # Coarse numerics: the identity holds at any resolution. Not round-off (1e-9): a blanket's
+    # break is unstable (a surface a little colder gets a much larger h), and since the
+    # film-coefficient step limit (SolverSettings.max_film_step) resolves the breaks in small
+    # steps, the batched solve's round-off (1e-12 K) grows through them to about 1e-6 K (the
+    # oil-quenched tube with the water-cooled bore); a batching error would be far larger.
     oil = load_quenchant("oil_conventional_60c_still")
     water = load_quenchant("water_20c_still")
     severity = Quenchant.constant(float(htc_from_grossmann(0.5)), 40.0)
@@ -256,11 +260,11 @@ def test_batch_equals_alone_with_kinetics():
         assert batch.steps == alone.steps
         for a, b in ((batch.time_s, alone.time_s), (batch.temperature_c, alone.temperature_c),
                      (batch.surface_c, alone.surface_c)):
-            np.testing.assert_allclose(a, b, rtol=1e-9, atol=0.0)
-        assert batch.heat_out_j == pytest.approx(alone.heat_out_j, rel=1e-9)
-        assert batch.latent_j == pytest.approx(alone.latent_j, rel=1e-9)
+            np.testing.assert_allclose(a, b, rtol=1e-7, atol=0.0)
+        assert batch.heat_out_j == pytest.approx(alone.heat_out_j, rel=1e-7)
+        assert batch.latent_j == pytest.approx(alone.latent_j, rel=1e-7)
         for name, value in fractions_alone.items():
-            np.testing.assert_allclose(fractions_together[i][name], value, rtol=1e-9, atol=1e-12)
+            np.testing.assert_allclose(fractions_together[i][name], value, rtol=1e-7, atol=1e-7)
     # The mix did transform: martensite somewhere, diffusional products somewhere else.
     assert max(f["martensite"].max() for f in fractions_together) > 0.5
     assert max((f["ferrite"] + f["pearlite"] + f["bainite"]).max() for f in fractions_together) > 0.3

@@ -31,7 +31,10 @@ pass for h; the effective coefficient g = A h_eff multiplies (T_cell - T_bath) a
 Step control, per body: the next step is the last one scaled by 0.9 times the smallest of
 max_temperature_step_k / (largest temperature change), max_fraction_step / (largest fraction change)
 and max_relative_step / (largest change relative to the cell's distance from the bath), clipped to
-[0.3, max_step_growth]. The guard stops the solve with a SolverError naming the body and the time
+[0.3, max_step_growth]. Before each step it is shortened further (by at most 0.3) so that no surface's
+h rises by more than max_film_step (ln ratio; 0: off) between its surface temperature now and the one
+extrapolated to the step's end: a vapour blanket's break is resolved as the surface comes to it,
+not seen once it is over. The guard stops the solve with a SolverError naming the body and the time
 when a temperature leaves [coldest bath - GUARD_TOLERANCE_K, start + GUARD_TOLERANCE_K] or the phase
 fractions leave [0, 1] or stop summing to 1 within FRACTION_TOLERANCE.
 
@@ -59,7 +62,7 @@ from fipy.solvers.scipy import LinearLUSolver
 from ..errors import SolverError
 from .banded import BandedDiffusion, unit_face_conductances
 from .properties import ConstantOverrides, PropertyTables, group_weights
-from .stepping import close_step, step_factor
+from .stepping import close_step, film_step_factor, step_factor
 from .surfaces import Surfaces
 
 #: Numerical guards checked at every step.
@@ -237,6 +240,26 @@ class Integrator:
         self.equation.solve(var=self.T, dt=1.0, solver=self.linear_solver)
         return np.array(self.T.value, dtype=float)
 
+    def _film_step_limit(self, temperature, k, last_change, dt_m, dt_prev, rows):
+        """Factor (<= 1) on each body's coming step from the rise of its surfaces' h over it
+        (stepping.film_step_factor), predicted from the temperatures extrapolated to the step's end
+        as the step itself does: the step control after a step would see a blanket's break only
+        once it is over (two 12 K steps through a ten-fold rise of h)."""
+        sf = self.geometry.surfaces
+        cell, body = sf.cell[rows], sf.member[rows]
+        t_cell, k_cell, both_rows = temperature[cell], np.concatenate([k[cell], k[cell]]), np.concatenate([rows, rows])
+        ratio = np.where(dt_prev > 0, dt_m / np.where(dt_prev > 0, dt_prev, 1.0), 0.0)
+
+        def rise(factor):
+            t_end = t_cell + (ratio * factor)[body] * last_change[cell]
+            # h at the surface temperature estimates (film in series with the half cell), as used.
+            h = np.maximum(sf.htc(self._film(np.concatenate([t_cell, t_end]), k_cell, both_rows)[1], both_rows), 1e-30)
+            per_body = np.zeros(dt_m.size)
+            np.maximum.at(per_body, body, np.log(h[rows.size:] / h[:rows.size]))
+            return per_body
+
+        return film_step_factor(getattr(self.settings, "max_film_step", 0.0), rise, dt_m.size)
+
     def _guard(self, temperature, active_cell, fractions, time_s) -> None:
         """SolverError naming the body and the time when the state stops being physical."""
         g = self.geometry
@@ -314,6 +337,8 @@ class Integrator:
 
         while active.any():
             active_cell = active[member] & self.solid
+            rows = sf.rows[active[sf.member]]
+            dt_m = dt_m * self._film_step_limit(temperature, k, last_change, dt_m, dt_prev, rows)
             dt_cell = np.where(active_cell, dt_m[member], 0.0)
             w_m = np.where(dt_prev > 0, dt_m / np.where(dt_prev > 0, dt_prev, 1.0), 0.0)
             a0_m = (1.0 + 2.0 * w_m) / (1.0 + w_m)
@@ -330,7 +355,6 @@ class Integrator:
             coeff = np.where(active_cell, a0 * rho_c / np.where(active_cell, dt_cell, 1.0),
                              np.where(self.solid, rho_c, 1.0))
             old_eff = np.where(active_cell, temperature + b * e_prev / (a0 * cp_step), temperature)
-            rows = sf.rows[active[sf.member]]
             g_rows, t_ref = self.surface_sinks(extrapolated, k, rows)
             cells = sf.cell[rows]
             sink_g = np.bincount(cells, g_rows, minlength=n)
