@@ -37,7 +37,7 @@ The fit is not written into the package: the printout gives the two numbers, whi
 in thermal/quenchant_model.py with a pointer here, and the preset tables are rewritten with
 ``python -m quenchwise.thermal.quenchant_model``.
 
-Run time: about 3 minutes per class on the 2-core CI machine (printed at the end).
+Run time: about 2 minutes per class on the 2-core CI machine (printed at the end).
 """
 
 from __future__ import annotations
@@ -81,8 +81,9 @@ def blanket(kind: str, h_vapour: float, t_collapse_c: float):
         entry["stages"] = saved
 
 
-def probe_misses(kind: str) -> list[str]:
-    """The class's sourced probe figures that fall outside their range with the model as it is now."""
+def check_misses(kind: str) -> list[str]:
+    """The class's sourced probe figures and outside checks (module docstring, step 2) that fail with
+    the model as it is now."""
     from quenchwise.thermal import quenchant_model as qm
     from quenchwise.thermal.probe_figures import probe_figures
     misses, figures = [], {}
@@ -180,7 +181,7 @@ def main(argv=None) -> int:
         for h in hs:
             for tc in ts:
                 with blanket(kind, h, tc):
-                    if probe_misses(kind):
+                    if check_misses(kind):
                         continue
                     err, _, _, breaches = bar_errors(args.model, path)
                     if breaches:

@@ -13,6 +13,7 @@ import pytest
 from quenchwise.case import load_case
 from quenchwise.thermal import quenchant_model as qm
 from quenchwise.thermal.quenchants import Quenchant
+from quenchwise.thermal.settings import SolverSettings
 from quenchwise.workflows.simulate import simulate
 
 # An oil whose blanket (375 W/m2K) breaks within 25 K at 730 C onto a 3440 W/m2K peak: a
@@ -31,8 +32,7 @@ def _surface_hrc(settings_list):
 
 
 def test_a_sharp_blanket_break_is_resolved_at_the_default_steps():
-    d = load_case({"steel": {"grade": "4140"}, "part": {"shape": "bar", "diameter_mm": 40},
-                   "quench": {"medium": "water_20c_still"}}).settings
+    d = SolverSettings()
     (limited, n_limited), (off, n_off), (fine, _) = _surface_hrc([d, replace(d, max_film_step=0.0), d.refined(2)])
     # With the limit the surface is within 0.5 HRC of the refined solve; without it, the break is
     # taken late and the surface reads more than 1 HRC soft. The limit costs under a third more steps.

@@ -31,7 +31,7 @@ pass for h; the effective coefficient g = A h_eff multiplies (T_cell - T_bath) a
 Step control, per body: the next step is the last one scaled by 0.9 times the smallest of
 max_temperature_step_k / (largest temperature change), max_fraction_step / (largest fraction change)
 and max_relative_step / (largest change relative to the cell's distance from the bath), clipped to
-[0.3, max_step_growth]. Before each step it is shortened further (by at most 0.3) so that no surface's
+[0.3, max_step_growth]. Before each step it is shortened further (down to 1/100) so that no surface's
 h rises by more than max_film_step (ln ratio; 0: off) between its surface temperature now and the one
 extrapolated to the step's end: a vapour blanket's break is resolved as the surface comes to it,
 not seen once it is over. The guard stops the solve with a SolverError naming the body and the time
@@ -244,7 +244,10 @@ class Integrator:
         """Factor (<= 1) on each body's coming step from the rise of its surfaces' h over it
         (stepping.film_step_factor), predicted from the temperatures extrapolated to the step's end
         as the step itself does: the step control after a step would see a blanket's break only
-        once it is over (two 12 K steps through a ten-fold rise of h)."""
+        once it is over (two 12 K steps through a ten-fold rise of h). Ones where the limit is off."""
+        limit = getattr(self.settings, "max_film_step", 0.0)
+        if not limit:
+            return np.ones(dt_m.size)
         sf = self.geometry.surfaces
         cell, body = sf.cell[rows], sf.member[rows]
         t_cell, k_cell, both_rows = temperature[cell], np.concatenate([k[cell], k[cell]]), np.concatenate([rows, rows])
@@ -258,7 +261,7 @@ class Integrator:
             np.maximum.at(per_body, body, np.log(h[rows.size:] / h[:rows.size]))
             return per_body
 
-        return film_step_factor(getattr(self.settings, "max_film_step", 0.0), rise, dt_m.size)
+        return film_step_factor(limit, rise, dt_m.size)
 
     def _guard(self, temperature, active_cell, fractions, time_s) -> None:
         """SolverError naming the body and the time when the state stops being physical."""

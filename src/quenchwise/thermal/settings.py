@@ -67,8 +67,8 @@ class SolverSettings(StepControl):
 
     max_film_step = 0.1: a vapour blanket that breaks multiplies h about ten-fold within 25 K; taken
     in two 12 K steps its break came late, and the surface of a 40 mm bar in a sharply breaking oil
-    read 54.6 HRC against 56.9 with the steps refined; with the limit 56.6, for about 8 % more steps
-    (tests/thermal/test_film_step.py). The (r, z) parts and the end-quench specimen keep it off:
+    read 54.6 HRC against 56.6 with the steps refined; with the limit 56.5, for 27 % more steps there
+    and 15-25 % with the built-in curves (tests/thermal/test_film_step.py, benchmarks/README.md). The (r, z) parts and the end-quench specimen keep it off:
     there the break sweeps over many surface rows one after another and the limit held every step
     of a 40 x 320 mm bar small (3.3 times the steps) without bringing its answer closer."""
 
